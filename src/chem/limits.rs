@@ -1,0 +1,61 @@
+//! Physical limits for inputs. A value outside these ranges is not seawater anyone samples
+//! on a reef (or is a unit mistake), so the row is refused with a message naming the column
+//! and the limit. These are deliberately wide (common practice: open-ocean and coastal
+//! extremes with margin); values inside them but outside a constant set's fitted range are
+//! solved and flagged instead (see [`super::MethodSet::range_warnings`]).
+
+/// (column, lowest, highest, unit). `lowest` is exclusive for quantities that must be > 0.
+pub const LIMITS: &[(&str, f64, f64, &str)] = &[
+    ("temp_c", -2.0, 45.0, "°C"),
+    ("salinity", 0.0, 50.0, ""),
+    ("pressure_dbar", 0.0, 11000.0, "dbar"),
+    ("depth_m", 0.0, 11000.0, "m"),
+    ("ta", 0.0, 5000.0, "µmol/kg"),
+    ("dic", 0.0, 5000.0, "µmol/kg"),
+    ("ph_t", 6.0, 9.5, ""),
+    ("pco2", 0.0, 20000.0, "µatm"),
+    ("fco2", 0.0, 20000.0, "µatm"),
+    ("co3", 0.0, 1500.0, "µmol/kg"),
+    ("silicate", 0.0, 500.0, "µmol/kg"),
+    ("phosphate", 0.0, 20.0, "µmol/kg"),
+];
+
+/// Columns whose value must be strictly positive (a zero concentration or partial pressure
+/// has no carbonate-system solution).
+const STRICTLY_POSITIVE: &[&str] = &["ta", "dic", "pco2", "fco2", "co3"];
+
+/// Check one value; `Err` names the column, the value and the valid range.
+pub fn check(column: &str, value: f64) -> Result<(), String> {
+    if !value.is_finite() {
+        return Err(format!("{column}: value {value} is not a finite number"));
+    }
+    let Some(&(_, lo, hi, unit)) = LIMITS.iter().find(|(c, ..)| *c == column) else {
+        return Ok(());
+    };
+    let positive = STRICTLY_POSITIVE.contains(&column);
+    let below = if positive { value <= lo } else { value < lo };
+    if below || value > hi {
+        let unit = if unit.is_empty() { String::new() } else { format!(" {unit}") };
+        let lower = if positive { format!("above {lo}") } else { format!("from {lo}") };
+        return Err(format!(
+            "{column} = {value}{unit} is outside the physical limit ({lower} to {hi}{unit})"
+        ));
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn limits_name_column_and_range() {
+        assert!(check("ta", 2300.0).is_ok());
+        let e = check("ta", -5.0).unwrap_err();
+        assert!(e.contains("ta") && e.contains("5000"), "{e}");
+        assert!(check("pco2", 0.0).is_err());
+        assert!(check("silicate", 0.0).is_ok());
+        assert!(check("ph_t", f64::NAN).unwrap_err().contains("finite"));
+        assert!(check("unknown_column", 1e9).is_ok());
+    }
+}

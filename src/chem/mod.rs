@@ -1,0 +1,422 @@
+//! The marine carbonate system.
+//!
+//! [`Constants::new`] evaluates every equilibrium constant of a [`MethodSet`] at in-situ
+//! temperature, salinity and pressure; [`solve_pair`] finds the full [`CarbonateState`] from
+//! any two measured parameters. Concentrations at this interface are µmol/kg-seawater,
+//! pCO2 and fCO2 are µatm at in-situ temperature and one atmosphere total pressure, pH is on
+//! the total scale. Internally everything is mol/kg.
+//!
+//! Scale handling follows CO2SYS (Lewis & Wallace 1998) and PyCO2SYS (Humphreys et al.
+//! 2022): constants are brought to the seawater scale with the one-atmosphere KSO4 and KF,
+//! pressure-corrected there (Millero 1995), and returned to the total scale with the
+//! pressure-corrected KSO4 and KF.
+
+pub mod constants;
+pub mod density;
+pub mod gas;
+pub mod limits;
+pub mod pressure;
+pub mod scales;
+mod solver;
+
+use std::fmt;
+use std::str::FromStr;
+
+use serde::{Deserialize, Serialize};
+
+pub use solver::{solve_from_h, solve_pair};
+
+use constants as c;
+
+/// Where a sample sits: in-situ temperature, practical salinity, gauge pressure, nutrients.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Conditions {
+    /// In-situ temperature, °C (ITS-90).
+    pub temp_c: f64,
+    /// Practical salinity (PSS-78).
+    pub salinity: f64,
+    /// Hydrostatic (gauge) pressure, dbar; 0 at the surface.
+    pub pressure_dbar: f64,
+    /// Total silicate, µmol/kg.
+    pub silicate: f64,
+    /// Total phosphate, µmol/kg.
+    pub phosphate: f64,
+}
+
+impl Conditions {
+    /// Surface water without nutrients.
+    pub fn surface(temp_c: f64, salinity: f64) -> Self {
+        Conditions { temp_c, salinity, pressure_dbar: 0.0, silicate: 0.0, phosphate: 0.0 }
+    }
+}
+
+macro_rules! named_enum {
+    ($(#[$m:meta])* $name:ident { $($(#[$vm:meta])* $var:ident = $text:literal, $cite:literal, $range:expr;)+ }) => {
+        $(#[$m])*
+        #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash)]
+        pub enum $name { $($(#[$vm])* $var,)+ }
+        impl $name {
+            /// Every option as (name, value).
+            pub const ALL: &'static [(&'static str, $name)] = &[$(($text, $name::$var),)+];
+            /// Short citation of the publication behind this option.
+            pub fn citation(&self) -> &'static str { match self { $($name::$var => $cite,)+ } }
+            /// Fitted (temperature °C, salinity) ranges: ((t_min, t_max), (s_min, s_max)).
+            pub fn fitted_range(&self) -> ((f64, f64), (f64, f64)) { match self { $($name::$var => $range,)+ } }
+            /// The names accepted by `from_str`, for messages.
+            pub fn names() -> String { Self::ALL.iter().map(|(n, _)| *n).collect::<Vec<_>>().join(", ") }
+        }
+        impl FromStr for $name {
+            type Err = String;
+            fn from_str(s: &str) -> Result<Self, String> {
+                let low = s.trim().to_ascii_lowercase();
+                Self::ALL.iter().find(|(n, _)| *n == low).map(|(_, v)| *v)
+                    .ok_or_else(|| format!("unknown {} '{}' (expected one of: {})", stringify!($name), s, Self::names()))
+            }
+        }
+        impl fmt::Display for $name {
+            fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+                let n = Self::ALL.iter().find(|(_, v)| v == self).map(|(n, _)| *n).unwrap_or("?");
+                f.write_str(n)
+            }
+        }
+        impl Serialize for $name {
+            fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> { s.collect_str(self) }
+        }
+        impl<'de> Deserialize<'de> for $name {
+            fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+                let s = String::deserialize(d)?;
+                s.parse().map_err(serde::de::Error::custom)
+            }
+        }
+    };
+}
+
+named_enum! {
+    /// The K1, K2 set for carbonic acid.
+    K1K2 {
+        #[default]
+        Lueker2000 = "lueker2000", "Lueker, Dickson & Keeling (2000), Mar. Chem. 70:105", ((2.0, 35.0), (19.0, 43.0));
+        Millero2010 = "millero2010", "Millero (2010), Mar. Freshwater Res. 61:139", ((0.0, 50.0), (1.0, 50.0));
+        WatersMilleroWoosley2014 = "wmw2014", "Waters, Millero & Woosley (2014), Mar. Chem. 165:66", ((0.0, 50.0), (1.0, 50.0));
+        Sulpis2020 = "sulpis2020", "Sulpis et al. (2020), Ocean Sci. 16:847", ((-1.7, 31.8), (30.7, 37.6));
+        DicksonMillero1987 = "dm87", "Dickson & Millero (1987), Deep-Sea Res. 34:1733 (refit of Mehrbach et al. 1973)", ((2.0, 35.0), (20.0, 40.0));
+    }
+}
+
+named_enum! {
+    /// The total-boron–salinity ratio.
+    BoronTotal {
+        #[default]
+        Lee2010 = "lee2010", "Lee et al. (2010), Geochim. Cosmochim. Acta 74:1801", ((-2.0, 45.0), (0.0, 50.0));
+        Uppstrom1974 = "uppstrom1974", "Uppström (1974), Deep-Sea Res. 21:161", ((-2.0, 45.0), (0.0, 50.0));
+    }
+}
+
+named_enum! {
+    /// The hydrogen fluoride dissociation constant.
+    KfSource {
+        #[default]
+        PerezFraga1987 = "pf87", "Perez & Fraga (1987), Mar. Chem. 21:161", ((9.0, 33.0), (10.0, 40.0));
+        DicksonRiley1979 = "dr79", "Dickson & Riley (1979), Mar. Chem. 7:89", ((5.0, 35.0), (10.0, 48.0));
+    }
+}
+
+/// The constants that a site may choose; everything else is fixed (see `DEVELOPERS.md`).
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct MethodSet {
+    pub k1k2: K1K2,
+    pub boron: BoronTotal,
+    pub kf: KfSource,
+}
+
+/// Citations of the constants every method set shares.
+pub const FIXED_CITATIONS: &[(&str, &str)] = &[
+    ("K0 and fugacity", "Weiss (1974), Mar. Chem. 2:203"),
+    ("KB", "Dickson (1990), Deep-Sea Res. 37:755"),
+    ("KW, KP1–3, KSi", "Millero (1995), Geochim. Cosmochim. Acta 59:661"),
+    ("KSO4", "Dickson (1990), J. Chem. Thermodyn. 22:113"),
+    ("Total sulfate", "Morris & Riley (1966), Deep-Sea Res. 13:699"),
+    ("Total fluoride", "Riley (1965), Deep-Sea Res. 12:219"),
+    ("Calcite and aragonite solubility", "Mucci (1983), Am. J. Sci. 283:780"),
+    ("Total calcium", "Riley & Tongudai (1967), Chem. Geol. 2:263"),
+    ("Pressure corrections", "Millero (1995), Geochim. Cosmochim. Acta 59:661"),
+    ("Water vapour pressure", "Weiss & Price (1980), Mar. Chem. 8:347"),
+];
+
+impl MethodSet {
+    /// Every constant with its source, for methods sections.
+    pub fn citations(&self) -> Vec<(String, String)> {
+        let mut v = vec![
+            ("K1, K2".to_string(), self.k1k2.citation().to_string()),
+            ("Total boron".to_string(), self.boron.citation().to_string()),
+            ("KF".to_string(), self.kf.citation().to_string()),
+        ];
+        v.extend(FIXED_CITATIONS.iter().map(|(a, b)| (a.to_string(), b.to_string())));
+        v
+    }
+
+    /// Warnings for conditions outside the fitted ranges of this set's constants (the
+    /// sample is still solved; the caller flags it). Mucci (1983) is fitted 5–40 °C,
+    /// S 5–44; the KSO4/KB/KW fits cover 0–45 °C, S 5–45.
+    pub fn range_warnings(&self, c: &Conditions) -> Vec<String> {
+        let mut out = Vec::new();
+        let mut check = |what: &str, cite: &str, ((t0, t1), (s0, s1)): ((f64, f64), (f64, f64))| {
+            if c.temp_c < t0 || c.temp_c > t1 {
+                out.push(format!(
+                    "temp_c {} °C is outside the {what} fitted range {t0}–{t1} °C ({cite})",
+                    c.temp_c
+                ));
+            }
+            if c.salinity < s0 || c.salinity > s1 {
+                out.push(format!(
+                    "salinity {} is outside the {what} fitted range {s0}–{s1} ({cite})",
+                    c.salinity
+                ));
+            }
+        };
+        check("K1/K2", self.k1k2.citation(), self.k1k2.fitted_range());
+        check("KF", self.kf.citation(), self.kf.fitted_range());
+        check("Ksp", "Mucci 1983", ((5.0, 40.0), (5.0, 44.0)));
+        out
+    }
+}
+
+/// Every constant needed to solve the system at one (T, S, P). Acid constants are on the
+/// total pH scale except `ks` and `kf` (free scale); all are mol/kg-SW. Totals are mol/kg.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Constants {
+    pub temp_c: f64,
+    pub salinity: f64,
+    pub k0: f64,
+    pub k1: f64,
+    pub k2: f64,
+    pub kb: f64,
+    pub kw: f64,
+    pub ks: f64,
+    pub kf: f64,
+    pub k1p: f64,
+    pub k2p: f64,
+    pub k3p: f64,
+    pub ksi: f64,
+    pub ksp_ar: f64,
+    pub ksp_ca: f64,
+    pub bt: f64,
+    pub st: f64,
+    pub ft: f64,
+    pub ca: f64,
+    pub sit: f64,
+    pub pt: f64,
+    /// fCO2/pCO2 at in-situ temperature and one atmosphere.
+    pub fugacity_factor: f64,
+}
+
+impl Constants {
+    /// Evaluate all constants of `m` at the conditions `cond`.
+    pub fn new(cond: &Conditions, m: &MethodSet) -> Constants {
+        let t_c = cond.temp_c;
+        let t_k = t_c + c::KELVIN_OFFSET;
+        let s = cond.salinity;
+        let p_bar = cond.pressure_dbar / 10.0;
+
+        let st = c::total_sulfate_morris_riley1966(s);
+        let ft = c::total_fluoride_riley1965(s);
+        let bt = match m.boron {
+            BoronTotal::Lee2010 => c::total_boron_lee2010(s),
+            BoronTotal::Uppstrom1974 => c::total_boron_uppstrom1974(s),
+        };
+
+        // Free-scale constants at one atmosphere, and the SWS→total factor from them.
+        let ks0 = c::ks_free_dickson1990(t_k, s);
+        let kf0 = match m.kf {
+            KfSource::PerezFraga1987 => c::kf_free_perez_fraga1987(t_k, s),
+            KfSource::DicksonRiley1979 => c::kf_free_dickson_riley1979(t_k, s),
+        };
+        let sws_to_total_0 = (1.0 + st / ks0) / (1.0 + st / ks0 + ft / kf0);
+
+        // Everything on the seawater scale at one atmosphere.
+        let (k1_sws, k2_sws) = match m.k1k2 {
+            K1K2::Lueker2000 => {
+                let (a, b) = c::k1k2_total_lueker2000(t_k, s);
+                (a / sws_to_total_0, b / sws_to_total_0)
+            }
+            K1K2::Sulpis2020 => {
+                let (a, b) = c::k1k2_total_sulpis2020(t_k, s);
+                (a / sws_to_total_0, b / sws_to_total_0)
+            }
+            K1K2::Millero2010 => c::k1k2_sws_millero2010(t_k, s),
+            K1K2::WatersMilleroWoosley2014 => c::k1k2_sws_wmw2014(t_k, s),
+            K1K2::DicksonMillero1987 => c::k1k2_sws_dickson_millero1987(t_k, s),
+        };
+        let kb_sws = c::kb_total_dickson1990(t_k, s) / sws_to_total_0;
+        let kw_sws = c::kw_sws_millero1995(t_k, s);
+        let (k1p_sws, k2p_sws, k3p_sws) = c::kp_sws_millero1995(t_k, s);
+        let ksi_sws = c::ksi_sws_millero1995(t_k, s);
+
+        // Pressure corrections (Millero 1995).
+        use pressure as pc;
+        let f = |terms: pc::VolumeTerms| terms.factor(t_c, p_bar);
+        let ks = ks0 * f(pc::KS);
+        let kf = kf0 * f(pc::KF);
+        let sws_to_total = (1.0 + st / ks) / (1.0 + st / ks + ft / kf);
+        let to_t = |k_sws: f64, terms: pc::VolumeTerms| k_sws * f(terms) * sws_to_total;
+
+        Constants {
+            temp_c: t_c,
+            salinity: s,
+            k0: c::k0_weiss1974(t_k, s),
+            k1: to_t(k1_sws, pc::K1),
+            k2: to_t(k2_sws, pc::K2),
+            kb: to_t(kb_sws, pc::KB),
+            kw: to_t(kw_sws, pc::KW),
+            ks,
+            kf,
+            k1p: to_t(k1p_sws, pc::KP1),
+            k2p: to_t(k2p_sws, pc::KP2),
+            k3p: to_t(k3p_sws, pc::KP3),
+            ksi: to_t(ksi_sws, pc::KB),
+            ksp_ar: c::ksp_aragonite_mucci1983(t_k, s) * f(pc::KSP_ARAGONITE),
+            ksp_ca: c::ksp_calcite_mucci1983(t_k, s) * f(pc::KSP_CALCITE),
+            bt,
+            st,
+            ft,
+            ca: c::total_calcium_riley_tongudai1967(s),
+            sit: cond.silicate * 1e-6,
+            pt: cond.phosphate * 1e-6,
+            fugacity_factor: gas::fugacity_factor(t_c),
+        }
+    }
+
+    /// The constants shifted by a Monte Carlo draw (see [`Perturbation`]).
+    pub fn perturbed(&self, p: &Perturbation) -> Constants {
+        let shift = |k: f64, dpk: f64| if dpk == 0.0 { k } else { k * 10f64.powf(-dpk) };
+        let boron = if p.boron_factor == 0.0 { 1.0 } else { p.boron_factor };
+        Constants {
+            k0: shift(self.k0, p.pk0),
+            k1: shift(self.k1, p.pk1),
+            k2: shift(self.k2, p.pk2),
+            kb: shift(self.kb, p.pkb),
+            kw: shift(self.kw, p.pkw),
+            ksp_ar: shift(self.ksp_ar, p.pksp_ar),
+            ksp_ca: shift(self.ksp_ca, p.pksp_ca),
+            bt: self.bt * boron,
+            ..*self
+        }
+    }
+}
+
+/// Additive shifts of pK = −log10 K and a multiplicative factor on total boron, used to
+/// propagate the constants' uncertainties. A `boron_factor` of 0 means "no change".
+#[derive(Clone, Copy, Debug, Default, PartialEq, Serialize)]
+pub struct Perturbation {
+    pub pk0: f64,
+    pub pk1: f64,
+    pub pk2: f64,
+    pub pkb: f64,
+    pub pkw: f64,
+    pub pksp_ar: f64,
+    pub pksp_ca: f64,
+    pub boron_factor: f64,
+}
+
+/// Standard uncertainties of the constants recommended by Orr, Epitalon, Dickson & Gattuso
+/// (2018), *Mar. Chem.* 207:84–107: pK0 0.002, pK1 0.0075, pK2 0.015, pKB 0.01, pKW 0.01,
+/// pK*sp 0.02 (both minerals), total boron 2 % (here as `boron_factor` = 0.02, a fractional
+/// standard uncertainty, not a factor to apply).
+pub const ORR2018: Perturbation = Perturbation {
+    pk0: 0.002,
+    pk1: 0.0075,
+    pk2: 0.015,
+    pkb: 0.01,
+    pkw: 0.01,
+    pksp_ar: 0.02,
+    pksp_ca: 0.02,
+    boron_factor: 0.02,
+};
+
+/// One measured carbonate-system parameter (µmol/kg, total-scale pH, µatm).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Input {
+    Ta(f64),
+    Dic(f64),
+    PhT(f64),
+    Pco2(f64),
+    Fco2(f64),
+    Co3(f64),
+}
+
+impl Input {
+    /// The column name of this parameter in CSV files.
+    pub fn column(&self) -> &'static str {
+        match self {
+            Input::Ta(_) => "ta",
+            Input::Dic(_) => "dic",
+            Input::PhT(_) => "ph_t",
+            Input::Pco2(_) => "pco2",
+            Input::Fco2(_) => "fco2",
+            Input::Co3(_) => "co3",
+        }
+    }
+    /// The value as given.
+    pub fn value(&self) -> f64 {
+        match *self {
+            Input::Ta(v) | Input::Dic(v) | Input::PhT(v) | Input::Pco2(v) | Input::Fco2(v) | Input::Co3(v) => v,
+        }
+    }
+}
+
+/// The solved carbonate system of one sample (µmol/kg, µatm, total-scale pH).
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct CarbonateState {
+    pub ta: f64,
+    pub dic: f64,
+    pub ph_t: f64,
+    pub pco2: f64,
+    pub fco2: f64,
+    pub hco3: f64,
+    pub co3: f64,
+    pub co2aq: f64,
+    pub omega_ar: f64,
+    pub omega_ca: f64,
+    pub revelle: f64,
+}
+
+/// Why a pair could not be solved.
+#[derive(Clone, Debug, PartialEq)]
+pub enum ChemError {
+    /// The two parameters cannot be used together (e.g. pCO2 with fCO2, or one twice).
+    InvalidPair(&'static str, &'static str),
+    /// A value outside its physical limit (message names the column and the limit).
+    OutOfRange(String),
+    /// The inputs are finite and in range but no seawater state satisfies them.
+    NoSolution(String),
+}
+
+impl fmt::Display for ChemError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            ChemError::InvalidPair(a, b) => write!(
+                f,
+                "{a} with {b} is not a valid pair (use two of ta, dic, ph_t, pco2/fco2, co3; \
+                 pco2 and fco2 carry the same information)"
+            ),
+            ChemError::OutOfRange(m) | ChemError::NoSolution(m) => f.write_str(m),
+        }
+    }
+}
+
+impl std::error::Error for ChemError {}
+
+/// Convenience: constants for `cond` and `m`, then [`solve_pair`].
+pub fn solve(a: Input, b: Input, cond: &Conditions, m: &MethodSet) -> Result<CarbonateState, ChemError> {
+    for (col, v) in [
+        ("temp_c", cond.temp_c),
+        ("salinity", cond.salinity),
+        ("pressure_dbar", cond.pressure_dbar),
+        ("silicate", cond.silicate),
+        ("phosphate", cond.phosphate),
+    ] {
+        limits::check(col, v).map_err(ChemError::OutOfRange)?;
+    }
+    solve_pair(a, b, &Constants::new(cond, m))
+}

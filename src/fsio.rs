@@ -1,0 +1,106 @@
+//! File output that never leaves a partial or clobbered file behind.
+//!
+//! Every output is written to a temporary file in the destination folder and renamed into
+//! place only once it is complete, so a crash, a full disk or Ctrl-C leaves either the old
+//! file or no file, never half a file. Temporary files are registered so that the Ctrl-C
+//! handler installed by `main` can remove them before the process exits.
+
+use std::io::{self, Write};
+use std::path::{Path, PathBuf};
+use std::sync::Mutex;
+
+/// Temporary files currently being written, removed by [`remove_pending`] on interrupt.
+static PENDING: Mutex<Vec<PathBuf>> = Mutex::new(Vec::new());
+
+/// Remove every temporary file still being written. Called from the Ctrl-C handler.
+pub fn remove_pending() {
+    if let Ok(mut list) = PENDING.lock() {
+        for p in list.drain(..) {
+            let _ = std::fs::remove_file(p);
+        }
+    }
+}
+
+fn forget(path: &Path) {
+    if let Ok(mut list) = PENDING.lock() {
+        list.retain(|p| p != path);
+    }
+}
+
+/// Write `path` atomically: `fill` writes the whole content into a temporary file beside
+/// `path`, which is then renamed over it. On any error the temporary file is removed and
+/// `path` is left as it was.
+pub fn write_atomic<F>(path: &Path, fill: F) -> io::Result<()>
+where
+    F: FnOnce(&mut dyn Write) -> io::Result<()>,
+{
+    let dir = match path.parent() {
+        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    let tmp = tempfile::Builder::new()
+        .prefix(".calcisite-")
+        .suffix(".part")
+        .tempfile_in(&dir)?;
+    let tmp_path = tmp.path().to_path_buf();
+    if let Ok(mut list) = PENDING.lock() {
+        list.push(tmp_path.clone());
+    }
+    let result = (|| {
+        let mut w = io::BufWriter::new(tmp.as_file());
+        fill(&mut w)?;
+        w.flush()?;
+        drop(w);
+        tmp.as_file().sync_all()?;
+        tmp.persist(path).map_err(|e| e.error)?;
+        Ok(())
+    })();
+    forget(&tmp_path);
+    result
+}
+
+/// Write bytes atomically (see [`write_atomic`]).
+pub fn write_bytes_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
+    write_atomic(path, |w| w.write_all(bytes))
+}
+
+/// True when `out` names the same file as one of `inputs` (after resolving links), so that
+/// a command can refuse to overwrite its own input.
+pub fn is_same_file_as_any(out: &Path, inputs: &[PathBuf]) -> bool {
+    let Ok(out_abs) = std::fs::canonicalize(out) else {
+        return false; // the output does not exist yet, so it cannot be an input
+    };
+    inputs
+        .iter()
+        .filter_map(|p| std::fs::canonicalize(p).ok())
+        .any(|p| p == out_abs)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn failed_write_leaves_old_content_and_no_temp_file() {
+        let dir = tempfile::tempdir().unwrap();
+        let target = dir.path().join("out.csv");
+        std::fs::write(&target, "old").unwrap();
+        let err = write_atomic(&target, |w| {
+            w.write_all(b"half")?;
+            Err(io::Error::other("boom"))
+        });
+        assert!(err.is_err());
+        assert_eq!(std::fs::read_to_string(&target).unwrap(), "old");
+        let names: Vec<_> = std::fs::read_dir(dir.path()).unwrap().collect();
+        assert_eq!(names.len(), 1, "temporary file left behind");
+    }
+
+    #[test]
+    fn successful_write_replaces_content() {
+        let dir = tempfile::tempdir().unwrap();
+        let target = dir.path().join("out.csv");
+        write_bytes_atomic(&target, b"new").unwrap();
+        assert_eq!(std::fs::read_to_string(&target).unwrap(), "new");
+        assert!(is_same_file_as_any(&target, &[target.clone()]));
+    }
+}
