@@ -215,7 +215,7 @@ impl Constants {
     /// Evaluate all constants of `m` at the conditions `cond`.
     pub fn new(cond: &Conditions, m: &MethodSet) -> Constants {
         let t_c = cond.temp_c;
-        let t_k = t_c + c::KELVIN_OFFSET;
+        let x = c::TempSal::new(t_c, cond.salinity);
         let s = cond.salinity;
         let p_bar = cond.pressure_dbar / 10.0;
 
@@ -226,57 +226,66 @@ impl Constants {
             BoronTotal::Uppstrom1974 => c::total_boron_uppstrom1974(s),
         };
 
-        // Free-scale constants at one atmosphere, and the SWS→total factor from them.
-        let ks0 = c::ks_free_dickson1990(t_k, s);
-        let kf0 = match m.kf {
-            KfSource::PerezFraga1987 => c::kf_free_perez_fraga1987(t_k, s),
-            KfSource::DicksonRiley1979 => c::kf_free_dickson_riley1979(t_k, s),
-        };
-        let sws_to_total_0 = (1.0 + st / ks0) / (1.0 + st / ks0 + ft / kf0);
+        use pressure as pc;
+        let lnf = |terms: pc::VolumeTerms| terms.ln_factor(t_c, p_bar);
 
-        // Everything on the seawater scale at one atmosphere.
-        let (k1_sws, k2_sws) = match m.k1k2 {
+        // Free-scale constants at one atmosphere and in situ, and the SWS→total factors.
+        let ln_ks0 = c::ln_ks_free_dickson1990(&x);
+        let ln_kf0 = match m.kf {
+            KfSource::PerezFraga1987 => c::ln_kf_free_perez_fraga1987(&x),
+            KfSource::DicksonRiley1979 => c::ln_kf_free_dickson_riley1979(&x),
+        };
+        let (ks0, kf0) = (ln_ks0.exp(), ln_kf0.exp());
+        let ks = (ln_ks0 + lnf(pc::KS)).exp();
+        let kf = (ln_kf0 + lnf(pc::KF)).exp();
+        let sws_to_total_0 = (1.0 + st / ks0) / (1.0 + st / ks0 + ft / kf0);
+        let sws_to_total = (1.0 + st / ks) / (1.0 + st / ks + ft / kf);
+        // ln of the factors taking a constant from its native scale at one atmosphere to
+        // the total scale in situ (the pressure factor is added separately).
+        let ln_from_sws = sws_to_total.ln();
+        let ln_from_total = ln_from_sws - sws_to_total_0.ln();
+
+        let (ln_k1, ln_k2, ln_scale_k) = match m.k1k2 {
             K1K2::Lueker2000 => {
-                let (a, b) = c::k1k2_total_lueker2000(t_k, s);
-                (a / sws_to_total_0, b / sws_to_total_0)
+                let (a, b) = c::ln_k1k2_total_lueker2000(&x);
+                (a, b, ln_from_total)
             }
             K1K2::Sulpis2020 => {
-                let (a, b) = c::k1k2_total_sulpis2020(t_k, s);
-                (a / sws_to_total_0, b / sws_to_total_0)
+                let (a, b) = c::ln_k1k2_total_sulpis2020(&x);
+                (a, b, ln_from_total)
             }
-            K1K2::Millero2010 => c::k1k2_sws_millero2010(t_k, s),
-            K1K2::WatersMilleroWoosley2014 => c::k1k2_sws_wmw2014(t_k, s),
-            K1K2::DicksonMillero1987 => c::k1k2_sws_dickson_millero1987(t_k, s),
+            K1K2::Millero2010 => {
+                let (a, b) = c::ln_k1k2_sws_millero2010(&x);
+                (a, b, ln_from_sws)
+            }
+            K1K2::WatersMilleroWoosley2014 => {
+                let (a, b) = c::ln_k1k2_sws_wmw2014(&x);
+                (a, b, ln_from_sws)
+            }
+            K1K2::DicksonMillero1987 => {
+                let (a, b) = c::ln_k1k2_sws_dickson_millero1987(&x);
+                (a, b, ln_from_sws)
+            }
         };
-        let kb_sws = c::kb_total_dickson1990(t_k, s) / sws_to_total_0;
-        let kw_sws = c::kw_sws_millero1995(t_k, s);
-        let (k1p_sws, k2p_sws, k3p_sws) = c::kp_sws_millero1995(t_k, s);
-        let ksi_sws = c::ksi_sws_millero1995(t_k, s);
-
-        // Pressure corrections (Millero 1995).
-        use pressure as pc;
-        let f = |terms: pc::VolumeTerms| terms.factor(t_c, p_bar);
-        let ks = ks0 * f(pc::KS);
-        let kf = kf0 * f(pc::KF);
-        let sws_to_total = (1.0 + st / ks) / (1.0 + st / ks + ft / kf);
-        let to_t = |k_sws: f64, terms: pc::VolumeTerms| k_sws * f(terms) * sws_to_total;
+        let (ln_k1p, ln_k2p, ln_k3p) = c::ln_kp_sws_millero1995(&x);
 
         Constants {
             temp_c: t_c,
             salinity: s,
-            k0: c::k0_weiss1974(t_k, s),
-            k1: to_t(k1_sws, pc::K1),
-            k2: to_t(k2_sws, pc::K2),
-            kb: to_t(kb_sws, pc::KB),
-            kw: to_t(kw_sws, pc::KW),
+            k0: c::ln_k0_weiss1974(&x).exp(),
+            k1: (ln_k1 + ln_scale_k + lnf(pc::K1)).exp(),
+            k2: (ln_k2 + ln_scale_k + lnf(pc::K2)).exp(),
+            kb: (c::ln_kb_total_dickson1990(&x) + ln_from_total + lnf(pc::KB)).exp(),
+            kw: (c::ln_kw_sws_millero1995(&x) + ln_from_sws + lnf(pc::KW)).exp(),
             ks,
             kf,
-            k1p: to_t(k1p_sws, pc::KP1),
-            k2p: to_t(k2p_sws, pc::KP2),
-            k3p: to_t(k3p_sws, pc::KP3),
-            ksi: to_t(ksi_sws, pc::KB),
-            ksp_ar: c::ksp_aragonite_mucci1983(t_k, s) * f(pc::KSP_ARAGONITE),
-            ksp_ca: c::ksp_calcite_mucci1983(t_k, s) * f(pc::KSP_CALCITE),
+            k1p: (ln_k1p + ln_from_sws + lnf(pc::KP1)).exp(),
+            k2p: (ln_k2p + ln_from_sws + lnf(pc::KP2)).exp(),
+            k3p: (ln_k3p + ln_from_sws + lnf(pc::KP3)).exp(),
+            // Millero (1995) gives no volume terms for silicic acid; the KB ones are used.
+            ksi: (c::ln_ksi_sws_millero1995(&x) + ln_from_sws + lnf(pc::KB)).exp(),
+            ksp_ar: (c::ln_ksp_aragonite_mucci1983(&x) + lnf(pc::KSP_ARAGONITE)).exp(),
+            ksp_ca: (c::ln_ksp_calcite_mucci1983(&x) + lnf(pc::KSP_CALCITE)).exp(),
             bt,
             st,
             ft,

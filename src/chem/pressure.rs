@@ -24,12 +24,19 @@ pub struct VolumeTerms {
 }
 
 impl VolumeTerms {
-    /// The factor K(P)/K(0) at `t_c` °C and `p_bar` bar (gauge).
-    pub fn factor(&self, t_c: f64, p_bar: f64) -> f64 {
+    /// ln of the factor K(P)/K(0) at `t_c` °C and `p_bar` bar (gauge).
+    pub fn ln_factor(&self, t_c: f64, p_bar: f64) -> f64 {
+        if p_bar == 0.0 {
+            return 0.0;
+        }
         let dv = self.a0 + self.a1 * t_c + self.a2 * t_c * t_c;
         let dk = (self.b0 + self.b1 * t_c) / 1000.0;
-        ((-dv + 0.5 * dk * p_bar) * p_bar / (GAS_CONSTANT * (t_c + super::constants::KELVIN_OFFSET)))
-            .exp()
+        (-dv + 0.5 * dk * p_bar) * p_bar / (GAS_CONSTANT * (t_c + super::constants::KELVIN_OFFSET))
+    }
+
+    /// The factor K(P)/K(0) at `t_c` °C and `p_bar` bar (gauge).
+    pub fn factor(&self, t_c: f64, p_bar: f64) -> f64 {
+        self.ln_factor(t_c, p_bar).exp()
     }
 }
 
