@@ -1,0 +1,708 @@
+//! Range and cross-field checks of a parsed site file, each reported with the file, line and
+//! key path of the offending value and what would be valid.
+
+use std::collections::BTreeSet;
+use std::path::{Component, Path, PathBuf};
+
+use chrono::FixedOffset;
+
+use super::dates::parse_offset;
+use super::schema::{
+    BUILT_IN_PATHWAYS, MONTH_NAMES, MonthRef, Season, SiteFile, calendar_seasons, month_from_name,
+};
+use super::spans::{SourceMap, did_you_mean};
+use crate::chem::{BoronTotal, K1K2, KfSource, MethodSet};
+use crate::diag::{Diagnostic, Diagnostics};
+
+/// Deepest depth accepted for a site or sampler, m (this is a reef-screening tool; the
+/// chemistry itself is valid deeper). Documented in docs/site-format.md.
+pub const MAX_DEPTH_M: f64 = 1000.0;
+/// Salinity accepted for a constant record salinity (same as the per-row QC limit).
+pub const SALINITY_RANGE: (f64, f64) = (0.0, 45.0);
+/// Accepted site net calcification, kg CaCO3 m⁻² yr⁻¹: above 0 (the outlook scales a positive
+/// present rate) and at most 50, the outlook stage's bounds. Kinsey (1985, from memory) gives
+/// ≈10 for high-cover zones.
+pub const NET_CALCIFICATION_RANGE: (f64, f64) = (0.0, 50.0);
+
+/// Names accepted in `[chemistry]` (as defined by the chemistry module).
+pub const K1K2_NAMES: &[&str] = &["lueker2000", "millero2010", "wmw2014", "sulpis2020", "dm87"];
+pub const BORON_NAMES: &[&str] = &["lee2010", "uppstrom1974"];
+pub const KF_NAMES: &[&str] = &["pf87", "dr79"];
+
+/// What validation derives from a valid site file.
+#[derive(Clone, Debug)]
+pub struct Resolved {
+    pub utc_offset: FixedOffset,
+    pub seasons: Vec<Season>,
+    /// Season index of each calendar month (index 0 = January).
+    pub season_of_month: [usize; 12],
+    pub methods: MethodSet,
+    /// Record file paths resolved against the site file's folder.
+    pub record_paths: Vec<PathBuf>,
+}
+
+struct Checker<'a> {
+    file: &'a Path,
+    map: &'a SourceMap,
+    diags: Diagnostics,
+}
+
+impl Checker<'_> {
+    fn error(&mut self, path: &str, message: impl Into<String>, help: impl Into<String>) {
+        let d = Diagnostic::error(message)
+            .with_file(self.file)
+            .with_help(help);
+        self.diags.push(self.map.at_path(d, path));
+    }
+    fn warning(&mut self, path: &str, message: impl Into<String>, help: impl Into<String>) {
+        let d = Diagnostic::warning(message)
+            .with_file(self.file)
+            .with_help(help);
+        self.diags.push(self.map.at_path(d, path));
+    }
+    fn range(&mut self, path: &str, what: &str, v: f64, lo: f64, hi: f64, unit: &str) {
+        if !v.is_finite() || v < lo || v > hi {
+            self.error(
+                path,
+                format!("{what} {v} is outside the valid range"),
+                format!("{what} must be between {lo} and {hi}{unit}"),
+            );
+        }
+    }
+}
+
+/// Removes `.` and `name/..` pairs lexically so messages show tidy paths.
+pub fn tidy_path(p: &Path) -> PathBuf {
+    let mut out: Vec<Component<'_>> = Vec::new();
+    for c in p.components() {
+        match c {
+            Component::CurDir => {}
+            Component::ParentDir if matches!(out.last(), Some(Component::Normal(_))) => {
+                out.pop();
+            }
+            other => out.push(other),
+        }
+    }
+    if out.is_empty() {
+        PathBuf::from(".")
+    } else {
+        out.iter().collect()
+    }
+}
+
+/// Checks every value of `site`; `file` is the site file's path as given.
+pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolved>, Diagnostics) {
+    let mut c = Checker {
+        file,
+        map,
+        diags: Diagnostics::new(),
+    };
+    let s = &site.site;
+    if s.name.trim().is_empty() {
+        c.error(
+            "site.name",
+            "the site name is empty",
+            "give the site a name, e.g. name = \"North channel\"",
+        );
+    }
+    c.range(
+        "site.latitude_deg",
+        "latitude",
+        s.latitude_deg,
+        -90.0,
+        90.0,
+        " degrees",
+    );
+    c.range(
+        "site.longitude_deg",
+        "longitude",
+        s.longitude_deg,
+        -180.0,
+        180.0,
+        " degrees",
+    );
+    c.range(
+        "site.depth_min_m",
+        "depth_min_m",
+        s.depth_min_m,
+        0.0,
+        MAX_DEPTH_M,
+        " m",
+    );
+    c.range(
+        "site.depth_max_m",
+        "depth_max_m",
+        s.depth_max_m,
+        0.0,
+        MAX_DEPTH_M,
+        " m",
+    );
+    if s.depth_min_m.is_finite() && s.depth_max_m.is_finite() && s.depth_min_m > s.depth_max_m {
+        c.error(
+            "site.depth_max_m",
+            format!("depth_max_m {} is shallower than depth_min_m {}", s.depth_max_m, s.depth_min_m),
+            "depth_min_m must be less than or equal to depth_max_m (both positive, metres below the surface)",
+        );
+    }
+    if let Some(a) = s.area_m2 {
+        c.range(
+            "site.area_m2",
+            "area_m2",
+            a,
+            f64::MIN_POSITIVE,
+            1e10,
+            " m² (positive)",
+        );
+    }
+    let utc_offset = match parse_offset(&s.utc_offset) {
+        Some(Some(o)) => Some(o),
+        _ => {
+            c.error(
+                "site.utc_offset",
+                format!("`{}` is not a UTC offset", s.utc_offset),
+                "write the offset of local time from UTC as \"+HH:MM\" or \"-HH:MM\", e.g. \"+10:00\"",
+            );
+            None
+        }
+    };
+
+    // [plan]
+    let p = &site.plan;
+    if let Some(a) = p.outplanting_area_m2 {
+        c.range(
+            "plan.outplanting_area_m2",
+            "outplanting_area_m2",
+            a,
+            0.0,
+            1e10,
+            " m²",
+        );
+        if let Some(site_area) = s.area_m2
+            && a > site_area
+        {
+            c.warning(
+                "plan.outplanting_area_m2",
+                format!("the out-planting area {a} m² is larger than the site area {site_area} m²"),
+                "check both areas (m²)",
+            );
+        }
+    }
+    for (k, y) in [
+        ("plan.project_start_year", p.project_start_year),
+        ("plan.project_end_year", p.project_end_year),
+    ] {
+        if let Some(y) = y {
+            c.range(k, "year", f64::from(y), 1900.0, 2200.0, "");
+        }
+    }
+    if let (Some(a), Some(b)) = (p.project_start_year, p.project_end_year)
+        && a > b
+    {
+        c.error(
+            "plan.project_end_year",
+            format!("project_end_year {b} is before project_start_year {a}"),
+            "the end year must not be before the start year",
+        );
+    }
+
+    // [baseline]
+    let b = &site.baseline;
+    if let Some(v) = b.net_calcification_kg_m2_yr {
+        let (lo, hi) = NET_CALCIFICATION_RANGE;
+        if !(v > lo && v <= hi) {
+            c.error(
+                "baseline.net_calcification_kg_m2_yr",
+                format!("net calcification {v} is outside the valid range"),
+                format!("give the present net community calcification above {lo} and at most {hi} kg CaCO3 m⁻² yr⁻¹"),
+            );
+        }
+    }
+    if let Some(v) = b.coral_cover_fraction
+        && !(0.0..=1.0).contains(&v)
+    {
+        let help = if (1.0..=100.0).contains(&v) {
+            format!(
+                "coral cover is a fraction between 0 and 1: write {} for {v} %",
+                v / 100.0
+            )
+        } else {
+            "coral cover is a fraction between 0 and 1".to_string()
+        };
+        c.error(
+            "baseline.coral_cover_fraction",
+            format!("coral cover {v} is outside 0–1"),
+            help,
+        );
+    }
+
+    // [[records]]
+    let base = file.parent().unwrap_or(Path::new(""));
+    let mut record_paths = Vec::new();
+    if site.records.is_empty() {
+        c.error(
+            "records",
+            "the site file lists no record files",
+            "add at least one [[records]] table with path = \"...csv\" and kind = \"bottle\" or \"sensor\"",
+        );
+    }
+    for (i, r) in site.records.iter().enumerate() {
+        let full = tidy_path(&base.join(&r.path));
+        if !full.is_file() {
+            let what = if full.exists() {
+                "is not a file"
+            } else {
+                "does not exist"
+            };
+            c.error(
+                &format!("records[{i}].path"),
+                format!("record file `{}` {what}", full.display()),
+                format!(
+                    "paths are relative to the folder of the site file ({}); check the spelling",
+                    if base.as_os_str().is_empty() {
+                        ".".to_string()
+                    } else {
+                        base.display().to_string()
+                    }
+                ),
+            );
+        }
+        record_paths.push(full);
+        if let Some(d) = r.depth_m {
+            c.range(
+                &format!("records[{i}].depth_m"),
+                "depth_m",
+                d,
+                0.0,
+                MAX_DEPTH_M,
+                " m",
+            );
+        }
+        if let Some(sal) = r.salinity {
+            let (lo, hi) = SALINITY_RANGE;
+            c.range(
+                &format!("records[{i}].salinity"),
+                "salinity",
+                sal,
+                lo,
+                hi,
+                "",
+            );
+        }
+        if let Some(st) = &r.station
+            && st.trim().is_empty()
+        {
+            c.error(
+                &format!("records[{i}].station"),
+                "the station name is empty",
+                "give a name or leave the key out",
+            );
+        }
+    }
+
+    // [seasons]
+    let seasons = check_seasons(&mut c, site);
+
+    // [projection]
+    let pr = &site.projection;
+    let mut known: Vec<String> = BUILT_IN_PATHWAYS.iter().map(|s| s.to_string()).collect();
+    let mut user_names = BTreeSet::new();
+    for (i, u) in pr.user_pathways.iter().enumerate() {
+        let path = format!("projection.user_pathways[{i}]");
+        if u.name.trim().is_empty() {
+            c.error(
+                &format!("{path}.name"),
+                "the pathway name is empty",
+                "give the pathway a name",
+            );
+        } else if BUILT_IN_PATHWAYS
+            .iter()
+            .any(|b| b.eq_ignore_ascii_case(&u.name))
+        {
+            c.error(
+                &format!("{path}.name"),
+                format!("`{}` is the name of a built-in pathway", u.name),
+                "choose another name for your own pathway",
+            );
+        } else if !user_names.insert(u.name.clone()) {
+            c.error(
+                &format!("{path}.name"),
+                format!("pathway `{}` is defined twice", u.name),
+                "give each user pathway its own name",
+            );
+        }
+        known.push(u.name.clone());
+        if u.points.len() < 2 {
+            c.error(
+                &format!("{path}.points"),
+                "a user pathway needs at least two [year, ppm] points",
+                "e.g. points = [[2025, 425.0], [2100, 600.0]]",
+            );
+        }
+        let mut prev = f64::NEG_INFINITY;
+        // Loose sanity ranges only: the outlook stage applies its own limits to pathways
+        // (and `check` runs those checks too).
+        let (y0, y1) = (1750.0, 2500.0);
+        let (c0, c1) = (0.0, 5000.0);
+        for (j, [y, ppm]) in u.points.iter().enumerate() {
+            let pp = format!("{path}.points[{j}]");
+            if !y.is_finite() || *y < y0 || *y > y1 || y.fract() != 0.0 {
+                c.error(
+                    &pp,
+                    format!("year {y} is not a whole year between {y0} and {y1}"),
+                    "each point is [year, ppm]",
+                );
+            } else if *y <= prev {
+                c.error(
+                    &pp,
+                    format!("year {y} is not after the previous point's year {prev}"),
+                    "list the points in increasing year order",
+                );
+            }
+            prev = *y;
+            if !ppm.is_finite() || *ppm <= c0 || *ppm > c1 {
+                c.error(
+                    &pp,
+                    format!("CO2 {ppm} ppm is outside the valid range"),
+                    format!("atmospheric CO2 must be above {c0} and at most {c1} ppm"),
+                );
+            }
+        }
+    }
+    if pr.pathways.is_empty() {
+        c.error(
+            "projection.pathways",
+            "no pathways are listed",
+            format!("list one or more of: {}", known.join(", ")),
+        );
+    }
+    for (i, name) in pr.pathways.iter().enumerate() {
+        if !known.iter().any(|k| k == name) {
+            let help = match known.iter().find(|k| k.eq_ignore_ascii_case(name)) {
+                Some(k) => format!("did you mean `{k}`? (names are case-sensitive)"),
+                None => match did_you_mean(name, known.iter().map(String::as_str)) {
+                    Some(k) => format!("did you mean `{k}`? valid pathways: {}", known.join(", ")),
+                    None => format!(
+                        "valid pathways: {} (or define your own in [[projection.user_pathways]])",
+                        known.join(", ")
+                    ),
+                },
+            };
+            c.error(
+                &format!("projection.pathways[{i}]"),
+                format!("unknown pathway `{name}`"),
+                help,
+            );
+        }
+    }
+    let mut prev_year = i32::MIN;
+    for (i, y) in pr.horizon_years.iter().enumerate() {
+        let path = format!("projection.horizon_years[{i}]");
+        if !(2000..=2500).contains(y) {
+            c.error(
+                &path,
+                format!("horizon year {y} is outside 2000–2500"),
+                "list years such as [2030, 2050, 2070, 2100]",
+            );
+        } else if *y <= prev_year {
+            c.error(
+                &path,
+                format!("horizon year {y} is not after {prev_year}"),
+                "list horizon years in increasing order, each once",
+            );
+        }
+        prev_year = *y;
+    }
+    if pr.members == 0 {
+        c.error(
+            "projection.members",
+            "0 ensemble members".to_string(),
+            "e.g. members = 1000",
+        );
+    }
+
+    // [calcification]
+    for (i, r) in site.calcification.relationships.iter().enumerate() {
+        if r.trim().is_empty() {
+            c.error(
+                &format!("calcification.relationships[{i}]"),
+                "empty relationship id",
+                "remove the empty entry",
+            );
+        }
+    }
+
+    // [uncertainty]
+    let u = &site.uncertainty;
+    c.range(
+        "uncertainty.ta_umol_kg",
+        "ta_umol_kg",
+        u.ta_umol_kg,
+        0.0,
+        100.0,
+        " µmol/kg",
+    );
+    c.range(
+        "uncertainty.dic_umol_kg",
+        "dic_umol_kg",
+        u.dic_umol_kg,
+        0.0,
+        100.0,
+        " µmol/kg",
+    );
+    c.range("uncertainty.ph", "ph", u.ph, 0.0, 0.5, " pH units");
+    c.range(
+        "uncertainty.pco2_pct",
+        "pco2_pct",
+        u.pco2_pct,
+        0.0,
+        50.0,
+        " %",
+    );
+
+    // [thresholds]
+    let t = &site.thresholds;
+    c.range(
+        "thresholds.omega_ar_optimal_min",
+        "omega_ar_optimal_min",
+        t.omega_ar_optimal_min,
+        0.0,
+        10.0,
+        "",
+    );
+    c.range(
+        "thresholds.omega_ar_adequate_min",
+        "omega_ar_adequate_min",
+        t.omega_ar_adequate_min,
+        0.0,
+        10.0,
+        "",
+    );
+    c.range(
+        "thresholds.omega_ar_marginal_min",
+        "omega_ar_marginal_min",
+        t.omega_ar_marginal_min,
+        0.0,
+        10.0,
+        "",
+    );
+    if !(t.omega_ar_optimal_min > t.omega_ar_adequate_min
+        && t.omega_ar_adequate_min > t.omega_ar_marginal_min)
+    {
+        c.error(
+            "thresholds",
+            "the Omega_ar class boundaries are not in decreasing order",
+            "require omega_ar_optimal_min > omega_ar_adequate_min > omega_ar_marginal_min (defaults 4.0, 3.5, 3.0)",
+        );
+    }
+
+    // [chemistry]
+    let ch = &site.chemistry;
+    let k1k2 = parse_method::<K1K2>(&mut c, "chemistry.k1k2", &ch.k1k2, K1K2_NAMES);
+    let boron = parse_method::<BoronTotal>(&mut c, "chemistry.boron", &ch.boron, BORON_NAMES);
+    let kf = parse_method::<KfSource>(&mut c, "chemistry.kf", &ch.kf, KF_NAMES);
+
+    // [[scenario]]
+    let mut names = BTreeSet::new();
+    for (i, sc) in site.scenario.iter().enumerate() {
+        let path = format!("scenario[{i}]");
+        if sc.name.trim().is_empty() {
+            c.error(
+                &format!("{path}.name"),
+                "the scenario name is empty",
+                "give the scenario a name",
+            );
+        } else if !names.insert(sc.name.clone()) {
+            c.error(
+                &format!("{path}.name"),
+                format!("scenario `{}` is defined twice", sc.name),
+                "give each scenario its own name",
+            );
+        }
+        c.range(
+            &format!("{path}.ta_offset_umol_kg"),
+            "ta_offset_umol_kg",
+            sc.ta_offset_umol_kg,
+            -500.0,
+            500.0,
+            " µmol/kg",
+        );
+        c.range(
+            &format!("{path}.dic_offset_umol_kg"),
+            "dic_offset_umol_kg",
+            sc.dic_offset_umol_kg,
+            -500.0,
+            500.0,
+            " µmol/kg",
+        );
+        if let (Some(list), Some(seasons)) = (&sc.seasons, &seasons) {
+            for (j, name) in list.iter().enumerate() {
+                if !seasons.iter().any(|s| &s.name == name) {
+                    let valid: Vec<&str> = seasons.iter().map(|s| s.name.as_str()).collect();
+                    let help = match did_you_mean(name, valid.iter().copied()) {
+                        Some(s) => format!("did you mean `{s}`? seasons: {}", valid.join(", ")),
+                        None => format!("seasons: {}", valid.join(", ")),
+                    };
+                    c.error(
+                        &format!("{path}.seasons[{j}]"),
+                        format!("unknown season `{name}`"),
+                        help,
+                    );
+                }
+            }
+        }
+    }
+
+    // [report]
+    if let Some(d) = &site.report.date
+        && chrono::NaiveDate::parse_from_str(d, "%Y-%m-%d").is_err()
+    {
+        c.error(
+            "report.date",
+            format!("`{d}` is not a date"),
+            "write the report date as \"YYYY-MM-DD\", e.g. \"2025-06-30\"",
+        );
+    }
+
+    let resolved = match (utc_offset, seasons, k1k2, boron, kf) {
+        (Some(utc_offset), Some(seasons), Some(k1k2), Some(boron), Some(kf))
+            if !c.diags.has_errors() =>
+        {
+            let mut season_of_month = [0usize; 12];
+            for (i, s) in seasons.iter().enumerate() {
+                for &m in &s.months {
+                    if let Some(slot) = season_of_month.get_mut(m as usize - 1) {
+                        *slot = i;
+                    }
+                }
+            }
+            Some(Resolved {
+                utc_offset,
+                seasons,
+                season_of_month,
+                methods: MethodSet { k1k2, boron, kf },
+                record_paths,
+            })
+        }
+        _ => None,
+    };
+    (resolved, c.diags)
+}
+
+fn parse_method<T: std::str::FromStr>(
+    c: &mut Checker<'_>,
+    path: &str,
+    value: &str,
+    names: &[&str],
+) -> Option<T> {
+    match value.parse::<T>() {
+        Ok(v) => Some(v),
+        Err(_) => {
+            let list = names.join(", ");
+            let help = match did_you_mean(value, names.iter().copied()) {
+                Some(s) => format!("did you mean `{s}`? valid names: {list}"),
+                None => format!("valid names: {list}"),
+            };
+            c.error(path, format!("unknown method `{value}`"), help);
+            None
+        }
+    }
+}
+
+fn check_seasons(c: &mut Checker<'_>, site: &SiteFile) -> Option<Vec<Season>> {
+    let spec = &site.seasons.0;
+    if spec.is_empty() {
+        return Some(calendar_seasons());
+    }
+    let mut owner: [Option<String>; 12] = Default::default();
+    let mut out = Vec::new();
+    let mut ok = true;
+    // Check in the order written, so a repeated month is reported where it repeats.
+    let mut entries: Vec<(&String, &Vec<MonthRef>)> = spec.iter().collect();
+    entries.sort_by_key(|(name, _)| {
+        c.map
+            .key_span(&format!("seasons.{name}"))
+            .map_or(usize::MAX, |r| r.start)
+    });
+    for (name, months) in entries {
+        let path = format!("seasons.{name}");
+        if months.is_empty() {
+            c.error(
+                &path,
+                format!("season `{name}` lists no months"),
+                "list its months, e.g. wet = [11, 12, 1, 2, 3, 4]",
+            );
+            ok = false;
+        }
+        let mut ms = Vec::new();
+        for (j, m) in months.iter().enumerate() {
+            let mp = format!("{path}[{j}]");
+            let month = match m {
+                MonthRef::Number(n) if (1..=12).contains(n) => u32::try_from(*n).ok(),
+                MonthRef::Name(s) => month_from_name(s),
+                MonthRef::Number(_) => None,
+            };
+            let Some(month) = month else {
+                let shown = match m {
+                    MonthRef::Number(n) => n.to_string(),
+                    MonthRef::Name(s) => format!("\"{s}\""),
+                };
+                c.error(
+                    &mp,
+                    format!("{shown} is not a month"),
+                    "months are 1–12 or names such as \"Jan\" or \"January\"",
+                );
+                ok = false;
+                continue;
+            };
+            let slot = &mut owner[month as usize - 1];
+            if let Some(prev) = slot {
+                c.error(
+                    &mp,
+                    format!(
+                        "{} is in season `{prev}` and again in `{name}`",
+                        MONTH_NAMES[month as usize - 1]
+                    ),
+                    "each month must belong to exactly one season",
+                );
+                ok = false;
+            } else {
+                *slot = Some(name.clone());
+            }
+            ms.push(month);
+        }
+        out.push(Season {
+            name: name.clone(),
+            months: ms,
+        });
+    }
+    let missing: Vec<&str> = owner
+        .iter()
+        .zip(MONTH_NAMES)
+        .filter(|(o, _)| o.is_none())
+        .map(|(_, n)| n)
+        .collect();
+    if !missing.is_empty() {
+        c.error(
+            "seasons",
+            format!("months not in any season: {}", missing.join(", ")),
+            "the seasons together must cover all 12 months, each exactly once",
+        );
+        ok = false;
+    }
+    ok.then_some(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn tidy_paths() {
+        assert_eq!(
+            tidy_path(Path::new("sites/../demo-data/a.csv")),
+            PathBuf::from("demo-data/a.csv")
+        );
+        assert_eq!(tidy_path(Path::new("./a.csv")), PathBuf::from("a.csv"));
+        assert_eq!(tidy_path(Path::new("../a.csv")), PathBuf::from("../a.csv"));
+    }
+}
