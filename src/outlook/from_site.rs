@@ -1,0 +1,347 @@
+//! Glue from a loaded site (`site::load_site`) to the outlook's plain inputs.
+//!
+//! * Every sample with a solved carbonate state becomes a [`ProjectionRecord`] (TA and pCO2
+//!   of the solved state, its measured pair for the ensemble's measurement draws; a TA
+//!   estimated from salinity carries the TA–salinity fit's residual as its uncertainty).
+//! * `[projection]`, `[calcification]`, `[uncertainty]`, `[thresholds]`, `[[scenario]]` and
+//!   `[baseline]` become [`ProjectionSettings`].
+//!
+//! Problems are reported as diagnostics naming the site file and the field.
+
+use chrono::Datelike;
+
+use crate::chem::Input;
+use crate::diag::{Diagnostic, Diagnostics};
+use crate::site::{LoadedSite, Pair, Sample, schema};
+
+use super::calcification::CalcificationSettings;
+use super::ensemble::{EnsembleSettings, MeasurementUncertainty};
+use super::pathways::{Observed, Pathway};
+use super::projection::{Disequilibrium, Measurement, ProjectionRecord};
+use super::scenario::{LocalScenario, Offsets};
+use super::thresholds::{HabitatClasses, guinotte_2003};
+use super::{PathwaySpec, ProjectionSettings, SiteInput};
+
+/// The outlook's inputs for a loaded site, or diagnostics naming the site file and field.
+pub fn from_loaded_site(
+    loaded: &LoadedSite,
+) -> Result<(SiteInput, ProjectionSettings), Diagnostics> {
+    let file = loaded.path.as_path();
+    let err = |field: &str, message: String, help: &str| {
+        let mut d = Diagnostic::error(message).with_file(file).with_field(field);
+        if !help.is_empty() {
+            d = d.with_help(help);
+        }
+        Diagnostics::from(d)
+    };
+    let site_file = &loaded.site;
+    let observed = Observed::noaa();
+
+    // Records.
+    let ta_fit_rmse = loaded.baseline.ta_salinity.as_ref().map(|f| f.rmse_umol_kg);
+    let records: Vec<ProjectionRecord> = loaded
+        .samples
+        .iter()
+        .filter_map(|smp| record_of(smp, ta_fit_rmse))
+        .collect();
+    if records.is_empty() {
+        return Err(err(
+            "records",
+            "no record row has a solved carbonate state, so nothing can be projected".into(),
+            "each row needs two of TA, DIC, pH, pCO2/fCO2 (run `calcisite check` for details)",
+        ));
+    }
+    let site = SiteInput {
+        name: site_file.site.name.clone(),
+        seasons: loaded.seasons.iter().map(|s| s.name.clone()).collect(),
+        records,
+        methods: loaded.methods,
+        observed: observed.clone(),
+    };
+
+    // Pathways.
+    let pr = &site_file.projection;
+    let mut pathways = Vec::with_capacity(pr.pathways.len());
+    for (i, name) in pr.pathways.iter().enumerate() {
+        let field = format!("projection.pathways[{i}]");
+        let pathway = match pr
+            .user_pathways
+            .iter()
+            .enumerate()
+            .find(|(_, u)| &u.name == name)
+        {
+            Some((ui, u)) => {
+                let mut points = Vec::with_capacity(u.points.len());
+                for (j, [y, ppm]) in u.points.iter().enumerate() {
+                    if !y.is_finite() || y.fract() != 0.0 || y.abs() > 1e6 {
+                        return Err(err(
+                            &format!("projection.user_pathways[{ui}].points[{j}]"),
+                            format!("year {y} is not a whole year"),
+                            "each point is [year, ppm]",
+                        ));
+                    }
+                    points.push((*y as i32, *ppm));
+                }
+                Pathway::user(name, &points).map_err(|e| {
+                    err(
+                        &format!("projection.user_pathways[{ui}]"),
+                        e.to_string(),
+                        "the outlook accepts whole years 1850-2500 and 150-3000 ppm",
+                    )
+                })?
+            }
+            None => Pathway::builtin(name).map_err(|e| err(&field, e.to_string(), ""))?,
+        };
+        pathways.push(PathwaySpec::with_default_warming(pathway, &observed));
+    }
+
+    // Horizon years.
+    let years = pr.horizon_years_or_default(loaded.last_sample_year());
+    if years.is_empty() {
+        return Err(err(
+            "projection.horizon_years",
+            format!(
+                "no horizon years after the last sample ({})",
+                loaded.last_sample_year()
+            ),
+            "list years explicitly, e.g. horizon_years = [2030, 2050, 2100]",
+        ));
+    }
+    if pr.members > super::ensemble::MAX_MEMBERS {
+        return Err(err(
+            "projection.members",
+            format!(
+                "{} ensemble members exceed the outlook's limit of {}",
+                pr.members,
+                super::ensemble::MAX_MEMBERS
+            ),
+            "1000 members give stable 5-95 % quantiles",
+        ));
+    }
+
+    // Uncertainty, thresholds, calcification, scenarios.
+    let u = &site_file.uncertainty;
+    let ensemble = EnsembleSettings {
+        members: pr.members,
+        seed: pr.seed,
+        constants: true,
+        measurement: MeasurementUncertainty {
+            ta_umol_kg: u.ta_umol_kg,
+            dic_umol_kg: u.dic_umol_kg,
+            ph: u.ph,
+            pco2_pct: u.pco2_pct,
+        },
+        threads: None,
+    };
+    let t = &site_file.thresholds;
+    let defaults = schema::ThresholdsSpec::default();
+    let classes = if *t == defaults {
+        guinotte_2003()
+    } else {
+        HabitatClasses::user(
+            &[
+                ("optimal".to_string(), t.omega_ar_optimal_min),
+                ("adequate".to_string(), t.omega_ar_adequate_min),
+                ("marginal".to_string(), t.omega_ar_marginal_min),
+            ],
+            "extremely marginal",
+            "site file [thresholds] (class names of Guinotte, Buddemeier & Kleypas 2003)",
+        )
+        .map_err(|e| err("thresholds", e.to_string(), ""))?
+    };
+    let (rate, rate_source) = site_file.baseline.net_calcification();
+    let calcification = CalcificationSettings::from_site(
+        Some(rate),
+        Some(&rate_source),
+        &site_file.calcification.relationships,
+    )
+    .map_err(|m| {
+        err(
+            "calcification",
+            m,
+            "known ids: chan2013, silverman2009, langdon2005",
+        )
+    })?;
+    let scenarios = site_file
+        .scenario
+        .iter()
+        .map(|sc| {
+            let o = Offsets {
+                ta_umol_kg: sc.ta_offset_umol_kg,
+                dic_umol_kg: sc.dic_offset_umol_kg,
+            };
+            match &sc.seasons {
+                Some(list) => LocalScenario {
+                    name: sc.name.clone(),
+                    all_seasons: Offsets::default(),
+                    by_season: list.iter().map(|s| (s.clone(), o)).collect(),
+                    start_year: None,
+                },
+                None => LocalScenario {
+                    name: sc.name.clone(),
+                    all_seasons: o,
+                    by_season: Vec::new(),
+                    start_year: None,
+                },
+            }
+        })
+        .collect();
+
+    let settings = ProjectionSettings {
+        pathways,
+        warming: pr.warming,
+        years,
+        mode: match pr.disequilibrium {
+            schema::Disequilibrium::Ratio => Disequilibrium::Ratio,
+            schema::Disequilibrium::Additive => Disequilibrium::Additive,
+        },
+        scenarios,
+        ensemble,
+        classes,
+        calcification,
+    };
+    Ok((site, settings))
+}
+
+/// The projection record of one sample (`None` when its state was not solved).
+fn record_of(smp: &Sample, ta_fit_rmse: Option<f64>) -> Option<ProjectionRecord> {
+    let st = smp.state?;
+    let m = &smp.measured;
+    let ta = if smp.ta_estimated {
+        Some(st.ta)
+    } else {
+        m.ta()
+    };
+    let (a, b) = match smp.pair? {
+        Pair::TaDic => (Input::Ta(ta?), Input::Dic(m.dic()?)),
+        Pair::TaPh => (Input::Ta(ta?), Input::PhT(m.ph_t()?)),
+        Pair::TaPco2 => (Input::Ta(ta?), Input::Pco2(m.pco2()?)),
+        Pair::TaFco2 => (Input::Ta(ta?), Input::Fco2(m.fco2()?)),
+        Pair::DicPh => (Input::Dic(m.dic()?), Input::PhT(m.ph_t()?)),
+        Pair::DicPco2 => (Input::Dic(m.dic()?), Input::Pco2(m.pco2()?)),
+        Pair::DicFco2 => (Input::Dic(m.dic()?), Input::Fco2(m.fco2()?)),
+        Pair::PhPco2 => (Input::PhT(m.ph_t()?), Input::Pco2(m.pco2()?)),
+        Pair::PhFco2 => (Input::PhT(m.ph_t()?), Input::Fco2(m.fco2()?)),
+    };
+    let sd_a = if smp.ta_estimated { ta_fit_rmse } else { None };
+    Some(ProjectionRecord {
+        label: format!(
+            "{}:{} (station {})",
+            smp.source_file.display(),
+            smp.line,
+            smp.station
+        ),
+        season: smp.season,
+        sample_year: smp.time.year(),
+        temp_c: smp.temp_c,
+        salinity: smp.salinity,
+        pressure_dbar: smp.pressure_dbar,
+        silicate: smp.silicate,
+        phosphate: smp.phosphate,
+        ta: st.ta,
+        pco2: st.pco2,
+        measured: Some(Measurement {
+            a,
+            b,
+            sd_a,
+            sd_b: None,
+        }),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::outlook::{NoProgress, run};
+    use crate::site::load_site;
+
+    fn write_site(dir: &std::path::Path, projection: &str) -> std::path::PathBuf {
+        // An invented two-season site with six TA + DIC bottle samples.
+        let csv = "date,station,temp_c,salinity,depth_m,ta,dic,silicate,phosphate\n\
+                   2024-01-10,A,28.2,35.1,3.0,2295.0,1985.0,1.0,0.1\n\
+                   2024-02-12,A,28.6,35.0,3.0,2290.0,1982.0,1.0,0.1\n\
+                   2024-03-11,A,28.4,35.2,3.0,2300.0,1990.0,1.0,0.1\n\
+                   2024-07-09,A,26.1,35.3,3.0,2305.0,2001.0,1.2,0.2\n\
+                   2024-08-13,A,25.8,35.3,3.0,2302.0,2003.0,1.2,0.2\n\
+                   2024-09-10,A,26.0,35.2,3.0,2298.0,1999.0,1.2,0.2\n";
+        std::fs::write(dir.join("bottles.csv"), csv).unwrap();
+        let toml = format!(
+            "[site]\nname = \"Invented glue-test reef\"\nlatitude_deg = -10.0\n\
+             longitude_deg = 150.0\ndepth_min_m = 2.0\ndepth_max_m = 4.0\nutc_offset = \"+10:00\"\n\n\
+             [[records]]\npath = \"bottles.csv\"\nkind = \"bottle\"\ndate_format = \"iso\"\n\n\
+             [seasons]\nwarm = [11, 12, 1, 2, 3, 4]\ncool = [5, 6, 7, 8, 9, 10]\n\n\
+             [[scenario]]\nname = \"alkalinity +20\"\nta_offset_umol_kg = 20.0\nseasons = [\"cool\"]\n\n\
+             {projection}\n"
+        );
+        let path = dir.join("site.toml");
+        std::fs::write(&path, toml).unwrap();
+        path
+    }
+
+    #[test]
+    fn loaded_site_becomes_outlook_inputs() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = write_site(
+            dir.path(),
+            "[projection]\npathways = [\"SSP2-4.5\", \"local\"]\nmembers = 40\nseed = 7\n\
+             [[projection.user_pathways]]\nname = \"local\"\npoints = [[2030, 450.0], [2100, 700.0]]\n",
+        );
+        let loaded = load_site(&path).map_err(|d| d.render(false)).unwrap();
+        let (site, s) = from_loaded_site(&loaded)
+            .map_err(|d| d.render(false))
+            .unwrap();
+        assert_eq!(site.records.len(), 6);
+        assert_eq!(site.seasons.len(), 2);
+        assert!(site.records.iter().all(|r| matches!(
+            r.measured,
+            Some(Measurement {
+                a: Input::Ta(_),
+                b: Input::Dic(_),
+                ..
+            })
+        )));
+        assert_eq!(s.pathways.len(), 2);
+        assert_eq!(s.pathways[1].pathway.name, "local");
+        assert_eq!(s.years.first(), Some(&2025));
+        assert_eq!(s.years.last(), Some(&2100));
+        assert_eq!((s.ensemble.members, s.ensemble.seed), (40, 7));
+        assert!(s.warming, "the site file's default is warming on");
+        assert_eq!(s.scenarios.len(), 1);
+        assert_eq!(
+            s.scenarios[0].by_season,
+            vec![(
+                "cool".to_string(),
+                Offsets {
+                    ta_umol_kg: 20.0,
+                    dic_umol_kg: 0.0
+                }
+            )]
+        );
+        assert_eq!(s.calcification.baseline_rate_kg_m2_yr, 1.5);
+        let o = run(&site, &s, &NoProgress).unwrap();
+        // The scenario changes only the cool season.
+        let warm_base = o.series("local", "none", "warm", "omega_ar");
+        let warm_sc = o.series("local", "alkalinity +20", "warm", "omega_ar");
+        assert_eq!(warm_base, warm_sc);
+        let cool_base = o.series("local", "none", "cool", "omega_ar");
+        let cool_sc = o.series("local", "alkalinity +20", "cool", "omega_ar");
+        assert!(cool_base.iter().zip(&cool_sc).all(|(a, b)| b.1[2] > a.1[2]));
+    }
+
+    #[test]
+    fn unusable_settings_name_the_field() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = write_site(
+            dir.path(),
+            "[projection]\npathways = [\"far\"]\n\
+             [[projection.user_pathways]]\nname = \"far\"\npoints = [[2030, 450.0], [2100, 4000.0]]\n",
+        );
+        let loaded = load_site(&path).map_err(|d| d.render(false)).unwrap();
+        let e = from_loaded_site(&loaded).unwrap_err().render(false);
+        assert!(
+            e.contains("projection.user_pathways[0]") && e.contains("4000"),
+            "{e}"
+        );
+        assert!(e.contains("site.toml"), "{e}");
+    }
+}

@@ -1,0 +1,650 @@
+//! Atmospheric CO2 pathways: the five SSP concentration pathways, the observed record, a
+//! steady-state pathway and user-defined pathways.
+//!
+//! Every pathway is the observed record up to its last year ([`Observed::last_year`], 2024 for
+//! the built-in NOAA table) followed by the pathway's own values. Between table years values
+//! are interpolated linearly. Values are global annual means of dry-air mole fraction (ppm).
+
+use std::fmt;
+
+/// One row of the SSP concentration table: global annual-mean atmospheric CO2 (ppm) in the
+/// order SSP1-1.9, SSP1-2.6, SSP2-4.5, SSP3-7.0, SSP5-8.5.
+///
+/// Source: Meinshausen et al. (2020), "The shared socio-economic pathway (SSP) greenhouse gas
+/// concentrations and their extensions to 2500", Geosci. Model Dev. 13:3571–3605; values as
+/// carried in the CMIP6 / IPCC AR6 concentration files (read from the WRF model's
+/// `run/CAMtr_volume_mixing_ratio.SSP*` files, which label them "from IPCC AR6"). Status V
+/// (verified, fact sheet §5). Valid 2015–2100 (the files continue to 2500; not carried here).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct SspRow {
+    /// Calendar year of the annual mean.
+    pub year: i32,
+    /// ppm for SSP1-1.9, SSP1-2.6, SSP2-4.5, SSP3-7.0, SSP5-8.5.
+    pub ppm: [f64; 5],
+}
+
+/// The SSP table (see [`SspRow`] for source and status): 2015, 2020 and every decade to 2100.
+pub const SSP_TABLE: [SspRow; 10] = [
+    SspRow {
+        year: 2015,
+        ppm: [399.949, 399.949, 399.949, 399.948, 399.949],
+    },
+    SspRow {
+        year: 2020,
+        ppm: [414.214, 414.232, 414.390, 415.155, 414.891],
+    },
+    SspRow {
+        year: 2030,
+        ppm: [434.324, 439.564, 444.143, 451.164, 451.515],
+    },
+    SspRow {
+        year: 2040,
+        ppm: [440.179, 458.201, 475.336, 493.221, 500.019],
+    },
+    SspRow {
+        year: 2050,
+        ppm: [437.632, 469.310, 506.875, 540.581, 562.784],
+    },
+    SspRow {
+        year: 2060,
+        ppm: [431.314, 473.750, 537.085, 593.230, 643.041],
+    },
+    SspRow {
+        year: 2070,
+        ppm: [423.877, 473.110, 563.925, 651.544, 743.662],
+    },
+    SspRow {
+        year: 2080,
+        ppm: [415.288, 467.390, 585.074, 716.008, 864.369],
+    },
+    SspRow {
+        year: 2090,
+        ppm: [405.255, 456.924, 597.735, 787.488, 998.321],
+    },
+    SspRow {
+        year: 2100,
+        ppm: [393.506, 445.625, 602.782, 867.191, 1135.210],
+    },
+];
+
+/// Citation carried with every SSP pathway in the outputs.
+pub const SSP_SOURCE: &str = "Meinshausen et al. (2020), Geosci. Model Dev. 13:3571-3605; \
+     CMIP6/IPCC AR6 concentration files (as carried in WRF run/CAMtr_volume_mixing_ratio.SSP*); \
+     observed NOAA GML global marine-surface annual means to the last observed year";
+
+/// One observed annual mean: NOAA Global Monitoring Laboratory global marine-surface annual
+/// mean CO2 (ppm) with its stated uncertainty (ppm).
+///
+/// Source: NOAA GML `co2_annmean_gl` as carried in the public `datasets/co2-ppm` repository
+/// (`data/co2-annmean-gl.csv`). Status V (fact sheet §5). Years between rows (2016–2019) are
+/// interpolated linearly.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct ObservedRow {
+    /// Calendar year.
+    pub year: i32,
+    /// Annual mean, ppm.
+    pub ppm: f64,
+    /// Stated uncertainty of the annual mean, ppm.
+    pub uncertainty_ppm: f64,
+}
+
+/// The built-in observed record (see [`ObservedRow`]).
+pub const NOAA_OBSERVED: [ObservedRow; 6] = [
+    ObservedRow {
+        year: 2015,
+        ppm: 399.65,
+        uncertainty_ppm: 0.05,
+    },
+    ObservedRow {
+        year: 2020,
+        ppm: 412.44,
+        uncertainty_ppm: 0.07,
+    },
+    ObservedRow {
+        year: 2021,
+        ppm: 414.70,
+        uncertainty_ppm: 0.07,
+    },
+    ObservedRow {
+        year: 2022,
+        ppm: 417.08,
+        uncertainty_ppm: 0.08,
+    },
+    ObservedRow {
+        year: 2023,
+        ppm: 419.37,
+        uncertainty_ppm: 0.10,
+    },
+    ObservedRow {
+        year: 2024,
+        ppm: 422.80,
+        uncertainty_ppm: 0.10,
+    },
+];
+
+/// Citation of the observed record.
+pub const NOAA_SOURCE: &str =
+    "NOAA GML global marine-surface annual mean CO2 (co2_annmean_gl), 2015 and 2020-2024";
+
+/// Plausible range for any user-given atmospheric CO2 value, ppm (a guard against unit slips,
+/// not a physical law: glacial minima are about 180 ppm and the SSP extensions peak near
+/// 2,200 ppm).
+pub const USER_PPM_RANGE: (f64, f64) = (150.0, 3000.0);
+
+/// Years a user pathway or observation may use.
+pub const USER_YEAR_RANGE: (i32, i32) = (1850, 2500);
+
+/// Errors from pathway construction or look-up. Messages name the pathway, the year or point
+/// and the limit.
+#[derive(Clone, Debug, PartialEq)]
+pub enum PathwayError {
+    /// A name that is neither built in nor defined.
+    UnknownName(String),
+    /// A user pathway or observation failed validation.
+    Invalid { pathway: String, message: String },
+    /// A year outside what the pathway covers.
+    OutOfRange {
+        pathway: String,
+        year: i32,
+        message: String,
+    },
+}
+
+impl fmt::Display for PathwayError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            PathwayError::UnknownName(n) => write!(
+                f,
+                "unknown CO2 pathway \"{n}\": built-in names are {}, or define it with year/ppm points",
+                BUILTIN_NAMES.join(", ")
+            ),
+            PathwayError::Invalid { pathway, message } => {
+                write!(f, "CO2 pathway \"{pathway}\": {message}")
+            }
+            PathwayError::OutOfRange {
+                pathway,
+                year,
+                message,
+            } => {
+                write!(f, "CO2 pathway \"{pathway}\", year {year}: {message}")
+            }
+        }
+    }
+}
+
+impl std::error::Error for PathwayError {}
+
+/// The five SSP concentration pathways.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum Ssp {
+    Ssp119,
+    Ssp126,
+    Ssp245,
+    Ssp370,
+    Ssp585,
+}
+
+impl Ssp {
+    /// All five, low to high forcing.
+    pub const ALL: [Ssp; 5] = [
+        Ssp::Ssp119,
+        Ssp::Ssp126,
+        Ssp::Ssp245,
+        Ssp::Ssp370,
+        Ssp::Ssp585,
+    ];
+
+    /// The usual name, e.g. "SSP2-4.5".
+    pub fn name(self) -> &'static str {
+        match self {
+            Ssp::Ssp119 => "SSP1-1.9",
+            Ssp::Ssp126 => "SSP1-2.6",
+            Ssp::Ssp245 => "SSP2-4.5",
+            Ssp::Ssp370 => "SSP3-7.0",
+            Ssp::Ssp585 => "SSP5-8.5",
+        }
+    }
+
+    /// Column of [`SSP_TABLE`].
+    pub fn column(self) -> usize {
+        match self {
+            Ssp::Ssp119 => 0,
+            Ssp::Ssp126 => 1,
+            Ssp::Ssp245 => 2,
+            Ssp::Ssp370 => 3,
+            Ssp::Ssp585 => 4,
+        }
+    }
+
+    /// Parses "SSP2-4.5" (also "ssp245", "SSP2-45"); case-insensitive.
+    pub fn parse(s: &str) -> Option<Ssp> {
+        let key: String = s
+            .chars()
+            .filter(|c| c.is_ascii_alphanumeric())
+            .map(|c| c.to_ascii_lowercase())
+            .collect();
+        match key.as_str() {
+            "ssp119" => Some(Ssp::Ssp119),
+            "ssp126" => Some(Ssp::Ssp126),
+            "ssp245" => Some(Ssp::Ssp245),
+            "ssp370" => Some(Ssp::Ssp370),
+            "ssp585" => Some(Ssp::Ssp585),
+            _ => None,
+        }
+    }
+
+    /// The table value interpolated linearly to `year` (2015–2100).
+    pub fn table_ppm(self, year: i32) -> Option<f64> {
+        let col = self.column();
+        let pts: Vec<(i32, f64)> = SSP_TABLE.iter().map(|r| (r.year, r.ppm[col])).collect();
+        interpolate(&pts, year)
+    }
+}
+
+/// Names accepted by [`Pathway::builtin`].
+pub const BUILTIN_NAMES: [&str; 6] = [
+    "SSP1-1.9", "SSP1-2.6", "SSP2-4.5", "SSP3-7.0", "SSP5-8.5", "steady",
+];
+
+/// Linear interpolation in a table of strictly increasing years; `None` outside it.
+fn interpolate(points: &[(i32, f64)], year: i32) -> Option<f64> {
+    let first = points.first()?;
+    let last = points.last()?;
+    if year < first.0 || year > last.0 {
+        return None;
+    }
+    for w in points.windows(2) {
+        let (y0, v0) = w[0];
+        let (y1, v1) = w[1];
+        if year == y0 {
+            return Some(v0);
+        }
+        if year > y0 && year <= y1 {
+            let f = f64::from(year - y0) / f64::from(y1 - y0);
+            return Some(v0 + f * (v1 - v0));
+        }
+    }
+    // A single-point table or the exact first year.
+    if year == first.0 { Some(first.1) } else { None }
+}
+
+/// The observed atmospheric record used for the historical part of every pathway and for the
+/// sampling-year atmosphere. Defaults to [`NOAA_OBSERVED`]; later annual means may be appended
+/// with [`Observed::extended`].
+#[derive(Clone, Debug, PartialEq)]
+pub struct Observed {
+    points: Vec<(i32, f64)>,
+    source: String,
+}
+
+impl Default for Observed {
+    fn default() -> Self {
+        Observed::noaa()
+    }
+}
+
+impl Observed {
+    /// The built-in NOAA record.
+    pub fn noaa() -> Self {
+        Observed {
+            points: NOAA_OBSERVED.iter().map(|r| (r.year, r.ppm)).collect(),
+            source: NOAA_SOURCE.to_string(),
+        }
+    }
+
+    /// The record with further annual means appended (for example a year published after
+    /// this program was built). Each new year must follow the record's last year.
+    pub fn extended(&self, extra: &[(i32, f64)], source: &str) -> Result<Observed, PathwayError> {
+        let mut points = self.points.clone();
+        for &(year, ppm) in extra {
+            let last = points.last().map(|p| p.0).unwrap_or(i32::MIN);
+            let err = |message: String| PathwayError::Invalid {
+                pathway: "observed".to_string(),
+                message,
+            };
+            if year <= last {
+                return Err(err(format!(
+                    "observed year {year} must come after the record's last year {last}"
+                )));
+            }
+            if year > USER_YEAR_RANGE.1 {
+                return Err(err(format!(
+                    "observed year {year} is after {}",
+                    USER_YEAR_RANGE.1
+                )));
+            }
+            check_ppm(ppm).map_err(|m| err(format!("observed year {year}: {m}")))?;
+            points.push((year, ppm));
+        }
+        Ok(Observed {
+            points,
+            source: if extra.is_empty() {
+                self.source.clone()
+            } else {
+                format!("{}; {}", self.source, source)
+            },
+        })
+    }
+
+    /// First observed year.
+    pub fn first_year(&self) -> i32 {
+        self.points.first().map(|p| p.0).unwrap_or(0)
+    }
+
+    /// Last observed year; every pathway starts after it.
+    pub fn last_year(&self) -> i32 {
+        self.points.last().map(|p| p.0).unwrap_or(0)
+    }
+
+    /// Last observed value, ppm (the level of the steady pathway).
+    pub fn last_ppm(&self) -> f64 {
+        self.points.last().map(|p| p.1).unwrap_or(f64::NAN)
+    }
+
+    /// The observed annual mean (interpolated between rows), or `None` outside the record.
+    pub fn ppm(&self, year: i32) -> Option<f64> {
+        interpolate(&self.points, year)
+    }
+
+    /// The points (year, ppm).
+    pub fn points(&self) -> &[(i32, f64)] {
+        &self.points
+    }
+
+    /// Where the record comes from.
+    pub fn source(&self) -> &str {
+        &self.source
+    }
+}
+
+fn check_ppm(ppm: f64) -> Result<(), String> {
+    if !ppm.is_finite() || ppm < USER_PPM_RANGE.0 || ppm > USER_PPM_RANGE.1 {
+        return Err(format!(
+            "{ppm} ppm is outside the accepted range {}-{} ppm",
+            USER_PPM_RANGE.0, USER_PPM_RANGE.1
+        ));
+    }
+    Ok(())
+}
+
+/// What a pathway does after the observed record.
+#[derive(Clone, Debug, PartialEq)]
+pub enum PathwayKind {
+    /// A built-in SSP ([`SSP_TABLE`]).
+    Ssp(Ssp),
+    /// The atmosphere held at the last observed annual mean.
+    Steady,
+    /// User points (year, ppm), strictly increasing years, interpolated linearly; between the
+    /// last observation and the first point the value is interpolated from the observation.
+    User(Vec<(i32, f64)>),
+}
+
+/// One CO2 pathway.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Pathway {
+    /// Display name ("SSP2-4.5", "steady" or the user's name).
+    pub name: String,
+    /// The future part.
+    pub kind: PathwayKind,
+}
+
+impl Pathway {
+    /// A built-in pathway by name: one of [`BUILTIN_NAMES`] (SSP names are accepted in forms
+    /// like "ssp245"; "steady" case-insensitive).
+    pub fn builtin(name: &str) -> Result<Pathway, PathwayError> {
+        let trimmed = name.trim();
+        if let Some(ssp) = Ssp::parse(trimmed) {
+            return Ok(Pathway {
+                name: ssp.name().to_string(),
+                kind: PathwayKind::Ssp(ssp),
+            });
+        }
+        if trimmed.eq_ignore_ascii_case("steady") {
+            return Ok(Pathway {
+                name: "steady".to_string(),
+                kind: PathwayKind::Steady,
+            });
+        }
+        Err(PathwayError::UnknownName(trimmed.to_string()))
+    }
+
+    /// The five SSPs, low to high.
+    pub fn all_ssps() -> Vec<Pathway> {
+        Ssp::ALL
+            .iter()
+            .map(|&s| Pathway {
+                name: s.name().to_string(),
+                kind: PathwayKind::Ssp(s),
+            })
+            .collect()
+    }
+
+    /// A user-defined pathway. Checks: a non-empty name that is not a built-in name, at least
+    /// one point, strictly increasing years within 1850–2500, each value within 150–3000 ppm.
+    pub fn user(name: &str, points: &[(i32, f64)]) -> Result<Pathway, PathwayError> {
+        let name = name.trim();
+        let err = |message: String| PathwayError::Invalid {
+            pathway: name.to_string(),
+            message,
+        };
+        if name.is_empty() {
+            return Err(PathwayError::Invalid {
+                pathway: String::new(),
+                message: "a user pathway needs a name".to_string(),
+            });
+        }
+        if name.chars().any(|c| c.is_control()) {
+            return Err(err("the name contains a control character".to_string()));
+        }
+        if Ssp::parse(name).is_some() || name.eq_ignore_ascii_case("steady") {
+            return Err(err(
+                "this name belongs to a built-in pathway; choose another name".to_string(),
+            ));
+        }
+        if points.is_empty() {
+            return Err(err("needs at least one (year, ppm) point".to_string()));
+        }
+        for (i, &(year, ppm)) in points.iter().enumerate() {
+            if year < USER_YEAR_RANGE.0 || year > USER_YEAR_RANGE.1 {
+                return Err(err(format!(
+                    "point {} year {year} is outside {}-{}",
+                    i + 1,
+                    USER_YEAR_RANGE.0,
+                    USER_YEAR_RANGE.1
+                )));
+            }
+            check_ppm(ppm).map_err(|m| err(format!("point {} (year {year}): {m}", i + 1)))?;
+            if i > 0 && year <= points[i - 1].0 {
+                return Err(err(format!(
+                    "years must increase: point {} year {year} follows year {}",
+                    i + 1,
+                    points[i - 1].0
+                )));
+            }
+        }
+        Ok(Pathway {
+            name: name.to_string(),
+            kind: PathwayKind::User(points.to_vec()),
+        })
+    }
+
+    /// Source text for outputs.
+    pub fn source(&self, observed: &Observed) -> String {
+        match &self.kind {
+            PathwayKind::Ssp(_) => SSP_SOURCE.to_string(),
+            PathwayKind::Steady => format!(
+                "atmosphere held at the last observed annual mean ({:.2} ppm, {}) after {}; {}",
+                observed.last_ppm(),
+                observed.last_year(),
+                observed.last_year(),
+                observed.source()
+            ),
+            PathwayKind::User(_) => format!(
+                "user-defined points from the site file (linear interpolation); {} to {}",
+                observed.source(),
+                observed.last_year()
+            ),
+        }
+    }
+
+    /// The last year the pathway defines (`None`: unbounded).
+    pub fn last_year(&self) -> Option<i32> {
+        match &self.kind {
+            PathwayKind::Ssp(_) => SSP_TABLE.last().map(|r| r.year),
+            PathwayKind::Steady => None,
+            PathwayKind::User(p) => p.last().map(|q| q.0),
+        }
+    }
+
+    /// The pathway's value in 2100 (or at its last point before), used to interpolate default
+    /// warming.
+    pub fn ppm_2100(&self, observed: &Observed) -> f64 {
+        let year = match self.last_year() {
+            Some(y) if y < 2100 => y,
+            _ => 2100,
+        };
+        self.xco2_ppm(observed, year).unwrap_or(f64::NAN)
+    }
+
+    /// Global annual-mean atmospheric CO2 (ppm, dry-air mole fraction) in `year`.
+    ///
+    /// Years covered by the observed record take the observation; later years take the
+    /// pathway's value. Errors name the pathway, the year and the covered span.
+    pub fn xco2_ppm(&self, observed: &Observed, year: i32) -> Result<f64, PathwayError> {
+        if year <= observed.last_year() {
+            return observed.ppm(year).ok_or_else(|| PathwayError::OutOfRange {
+                pathway: self.name.clone(),
+                year,
+                message: format!(
+                    "before the first observed annual mean ({}); add a user observation or use a later sampling year",
+                    observed.first_year()
+                ),
+            });
+        }
+        let out_of_range = |message: String| PathwayError::OutOfRange {
+            pathway: self.name.clone(),
+            year,
+            message,
+        };
+        match &self.kind {
+            PathwayKind::Ssp(ssp) => ssp
+                .table_ppm(year)
+                .ok_or_else(|| out_of_range("the SSP table covers 2015-2100".to_string())),
+            PathwayKind::Steady => Ok(observed.last_ppm()),
+            PathwayKind::User(points) => {
+                // Splice: the last observation, then the user's points after it.
+                let mut spliced: Vec<(i32, f64)> =
+                    vec![(observed.last_year(), observed.last_ppm())];
+                spliced.extend(
+                    points
+                        .iter()
+                        .copied()
+                        .filter(|p| p.0 > observed.last_year()),
+                );
+                if spliced.len() == 1 {
+                    return Err(out_of_range(format!(
+                        "all points lie within the observed record (to {}); add points after it",
+                        observed.last_year()
+                    )));
+                }
+                interpolate(&spliced, year).ok_or_else(|| {
+                    out_of_range(format!(
+                        "after the pathway's last point ({}); add points or shorten the horizon",
+                        spliced.last().map(|p| p.0).unwrap_or(year)
+                    ))
+                })
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // The Meinshausen et al. (2020) values at 2050 and 2100 are checked in
+    // tests/projection_reference.rs.
+
+    /// Outside check: the observed NOAA annual means (fact sheet §5, V) for 2015 and 2020–2024;
+    /// 2017 interpolated between 2015 and 2020.
+    #[test]
+    fn observed_part_uses_noaa_record() {
+        let obs = Observed::noaa();
+        let p = Pathway::builtin("SSP5-8.5").unwrap();
+        assert_eq!(p.xco2_ppm(&obs, 2015).unwrap(), 399.65);
+        assert_eq!(p.xco2_ppm(&obs, 2024).unwrap(), 422.80);
+        assert_eq!(p.xco2_ppm(&obs, 2022).unwrap(), 417.08);
+        let v2017 = p.xco2_ppm(&obs, 2017).unwrap();
+        assert!((v2017 - (399.65 + 0.4 * (412.44 - 399.65))).abs() < 1e-9);
+        // 2025: halfway between the table's 2020 and 2030 values.
+        let v2025 = p.xco2_ppm(&obs, 2025).unwrap();
+        assert!((v2025 - 0.5 * (414.891 + 451.515)).abs() < 1e-9);
+        assert!(p.xco2_ppm(&obs, 2014).is_err());
+        assert!(p.xco2_ppm(&obs, 2101).is_err());
+    }
+
+    #[test]
+    fn steady_holds_last_observation() {
+        let obs = Observed::noaa();
+        let p = Pathway::builtin("Steady").unwrap();
+        assert_eq!(p.xco2_ppm(&obs, 2090).unwrap(), 422.80);
+        assert_eq!(p.xco2_ppm(&obs, 2300).unwrap(), 422.80);
+        let obs2 = obs.extended(&[(2025, 425.5)], "test").unwrap();
+        assert_eq!(p.xco2_ppm(&obs2, 2080).unwrap(), 425.5);
+        assert!(obs.extended(&[(2023, 425.0)], "x").is_err());
+        assert!(obs.extended(&[(2026, 42.5)], "x").is_err());
+    }
+
+    #[test]
+    fn user_pathway_interpolates_and_validates() {
+        let obs = Observed::noaa();
+        let p = Pathway::user("local plan", &[(2030, 450.0), (2100, 500.0)]).unwrap();
+        let v2027 = p.xco2_ppm(&obs, 2027).unwrap();
+        assert!((v2027 - (422.80 + 0.5 * (450.0 - 422.80))).abs() < 1e-9);
+        assert!((p.xco2_ppm(&obs, 2065).unwrap() - 475.0).abs() < 1e-9);
+        let e = p.xco2_ppm(&obs, 2101).unwrap_err().to_string();
+        assert!(e.contains("local plan") && e.contains("2101"), "{e}");
+
+        let e = Pathway::user("x", &[(2050, 500.0), (2040, 450.0)])
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("years must increase"), "{e}");
+        let e = Pathway::user("x", &[(2050, 5000.0)])
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("150-3000"), "{e}");
+        assert!(Pathway::user("x", &[]).is_err());
+        assert!(Pathway::user("SSP2-4.5", &[(2050, 500.0)]).is_err());
+        assert!(Pathway::user("", &[(2050, 500.0)]).is_err());
+        let e = Pathway::builtin("SSP9-9.9").unwrap_err().to_string();
+        assert!(e.contains("SSP9-9.9") && e.contains("steady"), "{e}");
+    }
+
+    /// Common practice: among the SSPs the pathway order by 2100 CO2 follows the forcing label.
+    #[test]
+    fn ssps_are_ordered_by_2100_concentration() {
+        let obs = Observed::noaa();
+        let v: Vec<f64> = Pathway::all_ssps()
+            .iter()
+            .map(|p| p.ppm_2100(&obs))
+            .collect();
+        assert!(v.windows(2).all(|w| w[0] < w[1]), "{v:?}");
+    }
+
+    mod props {
+        use super::super::*;
+        use proptest::prelude::*;
+
+        proptest! {
+            /// Interpolated user values stay between the neighbouring points.
+            #[test]
+            fn user_values_are_bounded_by_points(
+                a in 150.0f64..3000.0, b in 150.0f64..3000.0, y in 2025i32..=2100
+            ) {
+                let p = Pathway::user("u", &[(2025, a), (2100, b)]).unwrap();
+                let v = p.xco2_ppm(&Observed::noaa(), y).unwrap();
+                prop_assert!(v >= a.min(b) - 1e-9 && v <= a.max(b) + 1e-9);
+            }
+        }
+    }
+}

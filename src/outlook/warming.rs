@@ -1,0 +1,151 @@
+//! Optional sea-surface warming per pathway, used when warming is turned on: the record's
+//! temperature is raised by the pathway's SST change between the sampling year and the
+//! horizon year (a delta method that leaves seasonal and short-term variability unchanged).
+
+use super::pathways::{Observed, Pathway, PathwayKind, Ssp};
+
+/// Global-mean SST change, 2081–2100 relative to 1995–2014, SSP1-2.6: +0.86 °C (very likely
+/// 0.43–1.47). IPCC AR6 WG1 Ch. 9 (Fox-Kemper et al. 2021). Status M (from memory, medium
+/// confidence, fact sheet §5). A global mean: tropical reef SST changes differ regionally.
+pub const SST_CHANGE_SSP126_C: f64 = 0.86;
+
+/// Global-mean SST change, 2081–2100 relative to 1995–2014, SSP5-8.5: +2.89 °C (very likely
+/// 2.01–4.07). IPCC AR6 WG1 Ch. 9 (Fox-Kemper et al. 2021). Status M (from memory, medium
+/// confidence). A global mean.
+pub const SST_CHANGE_SSP585_C: f64 = 2.89;
+
+/// Anchor year of zero change: the middle of the 1995–2014 reference period.
+pub const RAMP_START_YEAR: i32 = 2005;
+/// Anchor year of the full change: the middle of 2081–2100.
+pub const RAMP_END_YEAR: i32 = 2090;
+
+/// Where a pathway's SST change came from.
+#[derive(Clone, Debug, PartialEq)]
+pub enum WarmingOrigin {
+    /// An AR6 value ([`SST_CHANGE_SSP126_C`], [`SST_CHANGE_SSP585_C`]), from memory.
+    Ar6FromMemory,
+    /// Interpolated (or extrapolated) between the two AR6 values by the pathway's 2100 CO2;
+    /// our own rule, not a published number.
+    InterpolatedByCo2,
+    /// Given by the user in the site file.
+    User,
+}
+
+/// SST change of one pathway: `delta_c` reached at [`RAMP_END_YEAR`].
+#[derive(Clone, Debug, PartialEq)]
+pub struct Warming {
+    /// SST change at 2090 (the 2081–2100 mean) relative to 2005 (the 1995–2014 mean), °C.
+    pub delta_c: f64,
+    /// Where `delta_c` came from.
+    pub origin: WarmingOrigin,
+}
+
+impl Warming {
+    /// The default for a pathway. SSP1-2.6 and SSP5-8.5 take the AR6 values; every other
+    /// pathway (SSP1-1.9, SSP2-4.5, SSP3-7.0, steady, user) takes a value interpolated linearly
+    /// between them by its 2100 CO2 (or its last value before 2100), clamped to 0–5 °C.
+    pub fn default_for(pathway: &Pathway, observed: &Observed) -> Warming {
+        match pathway.kind {
+            PathwayKind::Ssp(Ssp::Ssp126) => Warming {
+                delta_c: SST_CHANGE_SSP126_C,
+                origin: WarmingOrigin::Ar6FromMemory,
+            },
+            PathwayKind::Ssp(Ssp::Ssp585) => Warming {
+                delta_c: SST_CHANGE_SSP585_C,
+                origin: WarmingOrigin::Ar6FromMemory,
+            },
+            _ => Warming {
+                delta_c: interpolate_by_co2(pathway.ppm_2100(observed)),
+                origin: WarmingOrigin::InterpolatedByCo2,
+            },
+        }
+    }
+
+    /// A user-given change (°C at 2090).
+    pub fn user(delta_c: f64) -> Warming {
+        Warming {
+            delta_c,
+            origin: WarmingOrigin::User,
+        }
+    }
+
+    /// SST change in `year` relative to the 1995–2014 mean, °C: 0 up to 2005, then a linear
+    /// ramp reaching `delta_c` at 2090 and continuing at the same rate afterwards (so the
+    /// 2081–2100 mean equals `delta_c`).
+    pub fn sst_change_c(&self, year: i32) -> f64 {
+        if year <= RAMP_START_YEAR {
+            return 0.0;
+        }
+        self.delta_c * f64::from(year - RAMP_START_YEAR)
+            / f64::from(RAMP_END_YEAR - RAMP_START_YEAR)
+    }
+
+    /// Change between a sampling year and a horizon year, °C (what is added to a record's
+    /// temperature).
+    pub fn change_between(&self, sample_year: i32, year: i32) -> f64 {
+        self.sst_change_c(year) - self.sst_change_c(sample_year)
+    }
+
+    /// Source text for outputs.
+    pub fn source(&self) -> &'static str {
+        match self.origin {
+            WarmingOrigin::Ar6FromMemory => {
+                "IPCC AR6 WG1 Ch. 9 (Fox-Kemper et al. 2021) global-mean SST change 2081-2100 vs \
+                 1995-2014 (from memory, medium confidence); linear ramp 2005-2090"
+            }
+            WarmingOrigin::InterpolatedByCo2 => {
+                "interpolated by 2100 CO2 between the AR6 SSP1-2.6 (+0.86 C) and SSP5-8.5 \
+                 (+2.89 C) global-mean SST changes (both from memory); our rule, not a published \
+                 value; linear ramp 2005-2090"
+            }
+            WarmingOrigin::User => "user value from the site file; linear ramp 2005-2090",
+        }
+    }
+}
+
+/// Linear interpolation of the 2090 SST change between the SSP1-2.6 and SSP5-8.5 values by the
+/// pathway's 2100 CO2 (ppm), clamped to 0–5 °C. Our own screening rule.
+pub fn interpolate_by_co2(ppm_2100: f64) -> f64 {
+    let c_lo = Ssp::Ssp126.table_ppm(2100).unwrap_or(445.625);
+    let c_hi = Ssp::Ssp585.table_ppm(2100).unwrap_or(1135.21);
+    if !ppm_2100.is_finite() {
+        return 0.0;
+    }
+    let d = SST_CHANGE_SSP126_C
+        + (SST_CHANGE_SSP585_C - SST_CHANGE_SSP126_C) * (ppm_2100 - c_lo) / (c_hi - c_lo);
+    d.clamp(0.0, 5.0)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn ramp_hits_anchor_values() {
+        let w = Warming::user(2.0);
+        assert_eq!(w.sst_change_c(1990), 0.0);
+        assert_eq!(w.sst_change_c(2005), 0.0);
+        assert!((w.sst_change_c(2090) - 2.0).abs() < 1e-12);
+        assert!((w.sst_change_c(2100) - 2.0 * 95.0 / 85.0).abs() < 1e-12);
+        // Mean over 2081-2100 of the annual ramp equals the change at 2090.5, close to delta.
+        let mean: f64 = (2081..=2100).map(|y| w.sst_change_c(y)).sum::<f64>() / 20.0;
+        assert!((mean - 2.0 * 85.5 / 85.0).abs() < 1e-12);
+        assert!((w.change_between(2024, 2024)).abs() < 1e-12);
+        assert!(w.change_between(2024, 2050) > 0.0);
+    }
+
+    #[test]
+    fn defaults_follow_ar6_values_and_co2_order() {
+        let obs = Observed::noaa();
+        let d: Vec<f64> = Pathway::all_ssps()
+            .iter()
+            .map(|p| Warming::default_for(p, &obs).delta_c)
+            .collect();
+        // From memory (AR6 WG1 Ch. 9): SSP1-2.6 +0.86, SSP5-8.5 +2.89 °C.
+        assert_eq!(d[1], 0.86);
+        assert_eq!(d[4], 2.89);
+        // Interpolated values keep the CO2 order.
+        assert!(d.windows(2).all(|w| w[0] < w[1]), "{d:?}");
+        assert!(d[2] > 0.86 && d[3] < 2.89);
+    }
+}
