@@ -52,6 +52,12 @@ where
         w.flush()?;
         drop(w);
         tmp.as_file().sync_all()?;
+        // Temporary files are private (0600); the finished output gets ordinary permissions.
+        #[cfg(unix)]
+        {
+            use std::os::unix::fs::PermissionsExt;
+            tmp.as_file().set_permissions(std::fs::Permissions::from_mode(0o644))?;
+        }
         tmp.persist(path).map_err(|e| e.error)?;
         Ok(())
     })();

@@ -3,7 +3,10 @@
 
 use std::process::ExitCode;
 
-use calcisite::cli::{self, solve::SolveArgs};
+use calcisite::cli::{
+    self, check::CheckArgs, init::InitArgs, project::ProjectArgs, report::ReportArgs,
+    solve::SolveArgs,
+};
 use clap::{CommandFactory, Parser, Subcommand};
 
 /// Seawater carbonate chemistry and aragonite-saturation outlooks for candidate coral-reef
@@ -13,12 +16,27 @@ use clap::{CommandFactory, Parser, Subcommand};
 struct Cli {
     #[command(subcommand)]
     command: Command,
+    /// Print errors only (no warnings, notes or progress).
+    #[arg(short, long, global = true, conflicts_with = "verbose")]
+    quiet: bool,
+    /// Print more detail about what is being done.
+    #[arg(short, long, global = true)]
+    verbose: bool,
 }
 
 #[derive(Subcommand, Debug)]
 enum Command {
     /// Solve the carbonate system for every row of a CSV file.
     Solve(SolveArgs),
+    /// Validate a site file and its records; print coverage, QC findings and the seasonal
+    /// baseline.
+    Check(CheckArgs),
+    /// Write a commented site file and a record template into a folder.
+    Init(InitArgs),
+    /// Project Omega_ar per season under CO2 pathways with uncertainty; write the tables.
+    Project(ProjectArgs),
+    /// Typeset the PDF feasibility report for one site, or a comparison of several.
+    Report(ReportArgs),
     /// Print a shell completion script (bash, zsh, fish, elvish, powershell).
     Completions {
         /// The shell.
@@ -33,6 +51,13 @@ fn main() -> ExitCode {
         std::process::exit(cli::EXIT_INTERRUPTED);
     });
     let args = Cli::parse();
+    calcisite::diag::set_verbosity(if args.quiet {
+        calcisite::diag::Verbosity::Quiet
+    } else if args.verbose {
+        calcisite::diag::Verbosity::Verbose
+    } else {
+        calcisite::diag::Verbosity::Normal
+    });
     let code = match args.command {
         Command::Solve(a) => match cli::solve::run(&a) {
             Ok(s) if s.unsolved > 0 => {
@@ -48,6 +73,10 @@ fn main() -> ExitCode {
                 cli::EXIT_INPUT
             }
         },
+        Command::Check(a) => cli::check::run_check(&a),
+        Command::Init(a) => cli::init::run_init(&a),
+        Command::Project(a) => cli::project::run_project(&a),
+        Command::Report(a) => cli::report::run_report(&a),
         Command::Completions { shell } => {
             clap_complete::generate(shell, &mut Cli::command(), "calcisite", &mut std::io::stdout());
             cli::EXIT_OK

@@ -10,6 +10,10 @@
 //! | 3 | partial results: some rows could not be solved; every row was still written |
 //! | 130 | interrupted (Ctrl-C); no partial output file is left behind |
 
+pub mod check;
+pub mod init;
+pub mod project;
+pub mod report;
 pub mod solve;
 
 /// Success.

@@ -1,0 +1,203 @@
+//! `calcisite project SITE.toml`: the seasonal Omega_ar projection under CO2 pathways with
+//! its Monte Carlo uncertainty, habitat-threshold crossings and the calcification outlook,
+//! as long-format CSV (one table, chosen with `--table`) or JSON (everything).
+//!
+//! Output goes to standard output, or atomically to `-o FILE` (temporary file in the same
+//! folder, then renamed). A progress bar is drawn on standard error only when it is a
+//! terminal. Exit status: 0 on success, 1 when the site or settings cannot be used (nothing
+//! is written), 3 when some ensemble member-years could not be solved (all results are still
+//! written; the notes say which).
+
+use std::io::{self, IsTerminal, Write};
+use std::path::{Path, PathBuf};
+
+use clap::Args;
+
+use crate::diag::colour_wanted;
+use crate::fsio;
+use crate::outlook::{self, Outlook, OutputFormat, OutputTable, Progress};
+use crate::site::{LoadedSite, load_site};
+
+use super::{EXIT_INPUT, EXIT_OK, EXIT_PARTIAL};
+
+/// Arguments of `calcisite project`.
+#[derive(Args, Debug, Clone)]
+#[command(after_help = "Examples:
+  calcisite project sites/demo-reef.toml -o outlook.csv
+  calcisite project sites/demo-reef.toml --format json -o outlook.json
+  calcisite project sites/demo-reef.toml --table crossings
+  calcisite project sites/demo-reef.toml --members 0      (ensemble off: records only)
+
+CSV columns (quantiles table): pathway, scenario, year, season, quantity, p05, p25, p50,
+p75, p95, members, outside_fit_pct. Quantities carry their unit in the name (omega_ar,
+omega_ca, ph_t, pco2_uatm, dic_umol_kg, ta_umol_kg, co3_umol_kg, temp_c,
+calc_change_pct_<id>, net_calc_kg_m2_yr_<id>). Screening-level estimates, not a permit
+determination.")]
+pub struct ProjectArgs {
+    /// The site description file (TOML).
+    pub site: PathBuf,
+    /// Output format: csv (one table) or json (all tables, settings and sources).
+    #[arg(long, default_value = "csv")]
+    pub format: OutputFormat,
+    /// CSV table: quantiles (default), crossings (first years below thresholds and of zero
+    /// net calcification) or thresholds (probability below each threshold per year).
+    #[arg(long, default_value = "quantiles")]
+    pub table: OutputTable,
+    /// Output file (written atomically); `-` or absent for standard output.
+    #[arg(short, long)]
+    pub output: Option<PathBuf>,
+    /// Monte Carlo seed (overrides `[projection] seed`).
+    #[arg(long)]
+    pub seed: Option<u64>,
+    /// Ensemble members per pathway and season (overrides `[projection] members`); 0 turns
+    /// the ensemble off (each record once, central constants).
+    #[arg(long)]
+    pub members: Option<usize>,
+    /// Worker threads (default: all cores). Results do not depend on it.
+    #[arg(long)]
+    pub threads: Option<usize>,
+}
+
+/// Progress bar on standard error (only used on a terminal).
+struct Bar(indicatif::ProgressBar);
+
+impl Progress for Bar {
+    fn start(&self, total: u64) {
+        self.0.set_length(total);
+    }
+    fn advance(&self, n: u64) {
+        self.0.inc(n);
+    }
+}
+
+/// Overrides of the site file's ensemble settings from the command line.
+#[derive(Clone, Copy, Debug, Default)]
+pub struct EnsembleOverrides {
+    pub seed: Option<u64>,
+    pub members: Option<usize>,
+    pub threads: Option<usize>,
+}
+
+/// Loads, checks and projects one site, printing its diagnostics to standard error. `Err`
+/// carries the exit status after the message was printed. The progress bar appears only
+/// when `progress` is true and standard error is a terminal.
+pub fn load_and_project(
+    path: &Path,
+    overrides: EnsembleOverrides,
+    progress: bool,
+    all_findings: bool,
+) -> Result<(LoadedSite, Outlook), i32> {
+    let colour = colour_wanted(false);
+    let loaded = match load_site(path) {
+        Ok(l) => l,
+        Err(diags) => {
+            eprint!("{}", diags.render(colour));
+            eprintln!(
+                "{}: the site cannot be projected until the errors above are fixed",
+                path.display()
+            );
+            return Err(EXIT_INPUT);
+        }
+    };
+    if !loaded.findings.is_empty() && !crate::diag::quiet() {
+        if all_findings || crate::diag::verbose() {
+            eprint!("{}", loaded.findings.render(colour));
+        } else {
+            let w = loaded.findings.count(crate::diag::Severity::Warning);
+            let n = loaded.findings.count(crate::diag::Severity::Note);
+            eprintln!(
+                "{}: {w} warning(s), {n} note(s); `calcisite check {}` lists them",
+                path.display(),
+                path.display()
+            );
+        }
+    }
+    let (site, mut settings) = match outlook::from_loaded_site(&loaded) {
+        Ok(v) => v,
+        Err(diags) => {
+            eprint!("{}", diags.render(colour));
+            return Err(EXIT_INPUT);
+        }
+    };
+    if let Some(seed) = overrides.seed {
+        settings.ensemble.seed = seed;
+    }
+    if let Some(m) = overrides.members {
+        settings.ensemble.members = m;
+    }
+    settings.ensemble.threads = overrides.threads;
+
+    let result = if progress && io::stderr().is_terminal() && !crate::diag::quiet() {
+        let bar = indicatif::ProgressBar::new(0);
+        if let Ok(style) = indicatif::ProgressStyle::with_template(
+            "{msg} [{bar:40}] {percent:>3}% ({elapsed}, ~{eta} left)",
+        ) {
+            bar.set_style(style.progress_chars("=> "));
+        }
+        bar.set_message("projecting");
+        let r = outlook::run(&site, &settings, &Bar(bar.clone()));
+        bar.finish_and_clear();
+        r
+    } else {
+        outlook::run(&site, &settings, &outlook::NoProgress)
+    };
+    match result {
+        Ok(o) => Ok((loaded, o)),
+        Err(e) => {
+            eprintln!("error: {}: {e}", path.display());
+            Err(EXIT_INPUT)
+        }
+    }
+}
+
+/// True when an outlook could not solve some ensemble members.
+pub fn has_unsolved(outlook: &Outlook) -> bool {
+    outlook.notes.iter().any(|n| n.contains("could not be solved"))
+}
+
+/// Runs `project`; returns the exit status.
+pub fn run_project(args: &ProjectArgs) -> i32 {
+    let out_path = args.output.as_ref().filter(|p| p.as_os_str() != "-");
+    let overrides =
+        EnsembleOverrides { seed: args.seed, members: args.members, threads: args.threads };
+    let (loaded, outlook) = match load_and_project(&args.site, overrides, true, true) {
+        Ok(v) => v,
+        Err(code) => return code,
+    };
+    if let Some(p) = out_path
+        && fsio::is_same_file_as_any(p, &loaded.input_files)
+    {
+        eprintln!(
+            "error: the output {} is one of the inputs; choose another file",
+            p.display()
+        );
+        return EXIT_INPUT;
+    }
+
+    let written = match out_path {
+        Some(p) => fsio::write_atomic(p, |w| outlook.write(w, args.format, args.table))
+            .map_err(|e| format!("cannot write {}: {e}", p.display())),
+        None => {
+            let stdout = io::stdout();
+            let mut w = io::BufWriter::new(stdout.lock());
+            outlook
+                .write(&mut w, args.format, args.table)
+                .and_then(|_| w.flush())
+                .map_err(|e| format!("cannot write to standard output: {e}"))
+        }
+    };
+    if let Err(e) = written {
+        eprintln!("error: {e}");
+        return EXIT_INPUT;
+    }
+    if !crate::diag::quiet() {
+        for note in &outlook.notes {
+            eprintln!("note: {note}");
+        }
+    }
+    if has_unsolved(&outlook) {
+        EXIT_PARTIAL
+    } else {
+        EXIT_OK
+    }
+}
