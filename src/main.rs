@@ -12,7 +12,21 @@ use clap::{CommandFactory, Parser, Subcommand};
 /// Seawater carbonate chemistry and aragonite-saturation outlooks for candidate coral-reef
 /// restoration sites. Screening-level estimates: not a permit determination.
 #[derive(Parser, Debug)]
-#[command(name = "calcisite", version, about, long_about = None)]
+#[command(
+    name = "calcisite",
+    version,
+    about,
+    long_about = None,
+    after_help = "Examples:
+  calcisite init my-site
+  calcisite check my-site/site.toml
+  calcisite project my-site/site.toml -o outlook.csv
+  calcisite report a.toml b.toml c.toml -o comparison.pdf
+  calcisite solve samples.csv -o solved.csv
+
+Screening-level estimates, not a permit determination: biological and local factors are not
+modelled; consult local permitting authorities and licensed professionals."
+)]
 struct Cli {
     #[command(subcommand)]
     command: Command,

@@ -23,6 +23,11 @@ pub enum CheckFormat {
 
 /// Arguments of `calcisite check`.
 #[derive(clap::Args, Debug, Clone)]
+#[command(after_help = "Examples:
+  calcisite check sites/tala-vesi-pass.toml
+  calcisite check my-site/site.toml --format json > check.json
+
+Exit status 0 when the site is usable (warnings allowed), 1 with every error listed when not.")]
 pub struct CheckArgs {
     /// The site description file (TOML)
     pub site: PathBuf,

@@ -6,6 +6,11 @@ use crate::site::init::write_templates;
 
 /// Arguments of `calcisite init`.
 #[derive(clap::Args, Debug, Clone)]
+#[command(after_help = "Examples:
+  calcisite init my-site
+  calcisite check my-site/site.toml      (after filling in the values and records)
+
+Existing files are never overwritten.")]
 pub struct InitArgs {
     /// Folder to write `site.toml` and `records.csv` into (created if missing; existing files
     /// are never overwritten)
