@@ -92,8 +92,14 @@ fn main() -> ExitCode {
         Command::Project(a) => cli::project::run_project(&a),
         Command::Report(a) => cli::report::run_report(&a),
         Command::Completions { shell } => {
-            clap_complete::generate(shell, &mut Cli::command(), "calcisite", &mut std::io::stdout());
-            cli::EXIT_OK
+            // Into memory first: generating straight to a full or closed stdout would panic.
+            let mut script = Vec::new();
+            clap_complete::generate(shell, &mut Cli::command(), "calcisite", &mut script);
+            if cli::print_out(&String::from_utf8_lossy(&script)) {
+                cli::EXIT_OK
+            } else {
+                cli::EXIT_INPUT
+            }
         }
     };
     ExitCode::from(code as u8)

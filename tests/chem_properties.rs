@@ -17,15 +17,22 @@ fn inputs_of(st: &CarbonateState) -> [Input; 6] {
 }
 
 fn conditions() -> impl Strategy<Value = Conditions> {
-    (0.0..35.0f64, 20.0..40.0f64, 0.0..1000.0f64, 0.0..100.0f64, 0.0..3.0f64).prop_map(
-        |(temp_c, salinity, pressure_dbar, silicate, phosphate)| Conditions {
-            temp_c,
-            salinity,
-            pressure_dbar,
-            silicate,
-            phosphate,
-        },
+    (
+        0.0..35.0f64,
+        20.0..40.0f64,
+        0.0..1000.0f64,
+        0.0..100.0f64,
+        0.0..3.0f64,
     )
+        .prop_map(
+            |(temp_c, salinity, pressure_dbar, silicate, phosphate)| Conditions {
+                temp_c,
+                salinity,
+                pressure_dbar,
+                silicate,
+                phosphate,
+            },
+        )
 }
 
 proptest! {

@@ -18,13 +18,19 @@ fn read_table(name: &str) -> Vec<Row> {
     rdr.records()
         .map(|r| {
             let r = r.unwrap();
-            headers.iter().zip(r.iter()).map(|(h, v)| (h.to_string(), v.to_string())).collect()
+            headers
+                .iter()
+                .zip(r.iter())
+                .map(|(h, v)| (h.to_string(), v.to_string()))
+                .collect()
         })
         .collect()
 }
 
 fn num(row: &Row, key: &str) -> f64 {
-    row[key].parse().unwrap_or_else(|_| panic!("{key} = {:?}", row[key]))
+    row[key]
+        .parse()
+        .unwrap_or_else(|_| panic!("{key} = {:?}", row[key]))
 }
 
 fn conditions(row: &Row) -> Conditions {
@@ -65,10 +71,19 @@ fn compare(row: &Row, pair: &str, methods: &MethodSet, worst: &mut Worst) {
     let (a, b) = pair.split_once('+').unwrap();
     let st = solve(input(row, a), input(row, b), &conditions(row), methods)
         .unwrap_or_else(|e| panic!("{pair} at {row:?}: {e}"));
-    let ctx = || format!("pair {pair}, T {}, S {}, P {}", row["temp_c"], row["salinity"], row["pressure_dbar"]);
+    let ctx = || {
+        format!(
+            "pair {pair}, T {}, S {}, P {}",
+            row["temp_c"], row["salinity"], row["pressure_dbar"]
+        )
+    };
     let d_ph = (st.ph_t - num(row, "ph_t")).abs();
-    let d_om = (st.omega_ar / num(row, "omega_ar") - 1.0).abs().max((st.omega_ca / num(row, "omega_ca") - 1.0).abs());
-    let d_pco2 = (st.pco2 / num(row, "pco2") - 1.0).abs().max((st.fco2 / num(row, "fco2") - 1.0).abs());
+    let d_om = (st.omega_ar / num(row, "omega_ar") - 1.0)
+        .abs()
+        .max((st.omega_ca / num(row, "omega_ca") - 1.0).abs());
+    let d_pco2 = (st.pco2 / num(row, "pco2") - 1.0)
+        .abs()
+        .max((st.fco2 / num(row, "fco2") - 1.0).abs());
     let d_ta = (st.ta - num(row, "ta")).abs();
     let d_dic = (st.dic - num(row, "dic")).abs();
     let d_rf = (st.revelle / num(row, "revelle") - 1.0).abs();
@@ -76,8 +91,13 @@ fn compare(row: &Row, pair: &str, methods: &MethodSet, worst: &mut Worst) {
     // TA and DIC 0.1 µmol/kg. The pH + CO2 pair is ill-conditioned for TA and DIC (a 1e-9
     // change in pH moves TA by ~1e-4 µmol/kg and both scale with 1/sensitivity), so for it
     // TA/DIC are compared at 0.1 % relative instead.
-    let ph_co2_pair = pair.starts_with("ph_t+") && (pair.ends_with("pco2") || pair.ends_with("fco2"));
-    let ta_dic_tol = if ph_co2_pair { 1e-3 * num(row, "dic") } else { 0.1 };
+    let ph_co2_pair =
+        pair.starts_with("ph_t+") && (pair.ends_with("pco2") || pair.ends_with("fco2"));
+    let ta_dic_tol = if ph_co2_pair {
+        1e-3 * num(row, "dic")
+    } else {
+        0.1
+    };
     assert!(d_ph < 5e-4, "pH off by {d_ph}: {}", ctx());
     assert!(d_om < 1e-3, "Omega off by {d_om}: {}", ctx());
     assert!(d_pco2 < 1e-3, "pCO2 off by {d_pco2}: {}", ctx());
@@ -105,8 +125,15 @@ fn every_pair_matches_pyco2sys_default_set() {
         compare(row, &row["pair"], &MethodSet::default(), &mut worst);
         pairs.insert(row["pair"].clone());
     }
-    assert_eq!(pairs.len(), 11, "every supported pair must be covered: {pairs:?}");
-    eprintln!("largest deviations from PyCO2SYS over {} states: {worst:?}", rows.len());
+    assert_eq!(
+        pairs.len(),
+        11,
+        "every supported pair must be covered: {pairs:?}"
+    );
+    eprintln!(
+        "largest deviations from PyCO2SYS over {} states: {worst:?}",
+        rows.len()
+    );
 }
 
 /// The alternative constant sets, 20 TA + DIC states each (PyCO2SYS).
@@ -132,10 +159,24 @@ fn constants_match_pyco2sys() {
     for row in read_table("constants_reference.csv") {
         let k = Constants::new(&conditions_no_nutrients(&row), &MethodSet::default());
         let ours = [
-            ("k0", k.k0), ("k1", k.k1), ("k2", k.k2), ("kb", k.kb), ("kw", k.kw), ("ks", k.ks),
-            ("kf", k.kf), ("k1p", k.k1p), ("k2p", k.k2p), ("k3p", k.k3p), ("ksi", k.ksi),
-            ("ksp_ar", k.ksp_ar), ("ksp_ca", k.ksp_ca), ("fugacity_factor", k.fugacity_factor),
-            ("bt", k.bt), ("st", k.st), ("ft", k.ft), ("ca", k.ca),
+            ("k0", k.k0),
+            ("k1", k.k1),
+            ("k2", k.k2),
+            ("kb", k.kb),
+            ("kw", k.kw),
+            ("ks", k.ks),
+            ("kf", k.kf),
+            ("k1p", k.k1p),
+            ("k2p", k.k2p),
+            ("k3p", k.k3p),
+            ("ksi", k.ksi),
+            ("ksp_ar", k.ksp_ar),
+            ("ksp_ca", k.ksp_ca),
+            ("fugacity_factor", k.fugacity_factor),
+            ("bt", k.bt),
+            ("st", k.st),
+            ("ft", k.ft),
+            ("ca", k.ca),
         ];
         for (name, v) in ours {
             let r = num(&row, name);

@@ -64,12 +64,20 @@ fn check_json_baseline_is_plausible() {
     let out = run(bin().args(["check", "sites/tala-vesi-pass.toml", "--format", "json"]));
     assert_ok(&out, "check --format json");
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("valid JSON");
-    let seasons = v["site"]["baseline"]["seasons"].as_array().expect("seasons");
+    let seasons = v["site"]["baseline"]["seasons"]
+        .as_array()
+        .expect("seasons");
     let mean_of = |name: &str| {
-        seasons.iter().find(|s| s["name"] == name).and_then(|s| s["omega_ar"]["mean"].as_f64())
+        seasons
+            .iter()
+            .find(|s| s["name"] == name)
+            .and_then(|s| s["omega_ar"]["mean"].as_f64())
     };
     let (calm, upwelling) = (mean_of("calm").unwrap(), mean_of("upwelling").unwrap());
-    assert!(upwelling < calm - 0.3, "upwelling {upwelling} vs calm {calm}");
+    assert!(
+        upwelling < calm - 0.3,
+        "upwelling {upwelling} vs calm {calm}"
+    );
 }
 
 #[test]
@@ -79,7 +87,17 @@ fn project_output_does_not_depend_on_threads() {
         let mut outs = Vec::new();
         for threads in ["1", "2"] {
             let path = dir.path().join(format!("p-{threads}.{format}"));
-            let out = run(bin().args(["project", "sites/tala-vesi-pass.toml", "--format", format, "--threads", threads, "-o"]).arg(&path));
+            let out = run(bin()
+                .args([
+                    "project",
+                    "sites/tala-vesi-pass.toml",
+                    "--format",
+                    format,
+                    "--threads",
+                    threads,
+                    "-o",
+                ])
+                .arg(&path));
             assert_ok(&out, "project");
             outs.push(std::fs::read(&path).unwrap());
         }
@@ -99,7 +117,10 @@ fn solve_output_does_not_depend_on_threads() {
     // 24 demo rows plus the header, every row solved.
     let text = String::from_utf8_lossy(&all.stdout);
     assert_eq!(text.lines().count(), 25);
-    assert!(text.lines().skip(1).all(|l| l.ends_with(',')), "a row has a problem:\n{text}");
+    assert!(
+        text.lines().skip(1).all(|l| l.ends_with(',')),
+        "a row has a problem:\n{text}"
+    );
 }
 
 #[test]
@@ -108,12 +129,19 @@ fn project_refuses_to_overwrite_its_input() {
     let site = dir.path().join("site.toml");
     let text = std::fs::read_to_string(root().join("sites/tala-vesi-pass.toml"))
         .unwrap()
-        .replace("../demo-data/", &format!("{}/", root().join("demo-data").display()));
+        .replace(
+            "../demo-data/",
+            &format!("{}/", root().join("demo-data").display()),
+        );
     std::fs::write(&site, &text).unwrap();
     let out = run(bin().args(["project"]).arg(&site).arg("-o").arg(&site));
     assert_eq!(out.status.code(), Some(1));
     assert!(String::from_utf8_lossy(&out.stderr).contains("one of the inputs"));
-    assert_eq!(std::fs::read_to_string(&site).unwrap(), text, "input untouched");
+    assert_eq!(
+        std::fs::read_to_string(&site).unwrap(),
+        text,
+        "input untouched"
+    );
 }
 
 fn leftovers(dir: &Path) -> Vec<String> {
@@ -140,10 +168,18 @@ fn interrupted_solve_leaves_no_file() {
     }
     drop(f);
     let output = dir.path().join("out.csv");
-    let mut child = bin().arg("solve").arg(&input).arg("-o").arg(&output).spawn().unwrap();
+    let mut child = bin()
+        .arg("solve")
+        .arg(&input)
+        .arg("-o")
+        .arg(&output)
+        .spawn()
+        .unwrap();
     std::thread::sleep(std::time::Duration::from_millis(300));
     // SIGINT, as a terminal's Ctrl-C sends.
-    let _ = Command::new("kill").args(["-INT", &child.id().to_string()]).status();
+    let _ = Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status();
     let status = child.wait().unwrap();
     if status.success() {
         // The machine was fast enough to finish first: then the output must be complete.
@@ -151,7 +187,11 @@ fn interrupted_solve_leaves_no_file() {
         assert_eq!(text.lines().count(), 1_500_001);
     } else {
         assert_eq!(status.code(), Some(130), "{status:?}");
-        assert!(leftovers(dir.path()).is_empty(), "left behind: {:?}", leftovers(dir.path()));
+        assert!(
+            leftovers(dir.path()).is_empty(),
+            "left behind: {:?}",
+            leftovers(dir.path())
+        );
     }
 }
 

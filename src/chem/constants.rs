@@ -36,7 +36,14 @@ impl TempSal {
     pub fn new(temp_c: f64, s: f64) -> TempSal {
         let t_k = temp_c + KELVIN_OFFSET;
         let ionic = ionic_strength(s);
-        TempSal { t_k, ln_t: t_k.ln(), s, sqrt_s: s.sqrt(), ionic, sqrt_i: ionic.sqrt() }
+        TempSal {
+            t_k,
+            ln_t: t_k.ln(),
+            s,
+            sqrt_s: s.sqrt(),
+            ionic,
+            sqrt_i: ionic.sqrt(),
+        }
     }
 }
 
@@ -96,7 +103,9 @@ pub fn total_calcium_riley_tongudai1967(s: f64) -> f64 {
 /// Guide check: ln K0 = −3.5617 at S 35, 25 °C. Valid t −1–40 °C, S 0–40.
 pub fn ln_k0_weiss1974(x: &TempSal) -> f64 {
     let t100 = x.t_k / 100.0;
-    -60.2409 + 93.4517 / t100 + 23.3585 * (x.ln_t - 100f64.ln())
+    -60.2409
+        + 93.4517 / t100
+        + 23.3585 * (x.ln_t - 100f64.ln())
         + x.s * (0.023517 - 0.023656 * t100 + 0.0047036 * t100 * t100)
 }
 
@@ -252,7 +261,9 @@ pub fn ln_ksi_sws_millero1995(x: &TempSal) -> f64 {
 /// Wolf-Gladrow 2001, App. A). Fitted t 5–40 °C, S 5–44.
 pub fn ln_ksp_calcite_mucci1983(x: &TempSal) -> f64 {
     let (t, s, sq) = (x.t_k, x.s, x.sqrt_s);
-    let log_k = -171.9065 - 0.077993 * t + 2839.319 / t + 71.595 * x.ln_t / LN10
+    let log_k = -171.9065 - 0.077993 * t
+        + 2839.319 / t
+        + 71.595 * x.ln_t / LN10
         + (-0.77712 + 0.0028426 * t + 178.34 / t) * sq
         - 0.07711 * s
         + 0.0041249 * s * sq;
@@ -264,7 +275,9 @@ pub fn ln_ksp_calcite_mucci1983(x: &TempSal) -> f64 {
 /// Wolf-Gladrow 2001, App. A). Fitted t 5–40 °C, S 5–44.
 pub fn ln_ksp_aragonite_mucci1983(x: &TempSal) -> f64 {
     let (t, s, sq) = (x.t_k, x.s, x.sqrt_s);
-    let log_k = -171.945 - 0.077993 * t + 2903.293 / t + 71.595 * x.ln_t / LN10
+    let log_k = -171.945 - 0.077993 * t
+        + 2903.293 / t
+        + 71.595 * x.ln_t / LN10
         + (-0.068393 + 0.0017276 * t + 88.135 / t) * sq
         - 0.10018 * s
         + 0.0059415 * s * sq;

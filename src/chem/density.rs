@@ -67,7 +67,11 @@ pub fn density_kg_m3(
     let pt = potential_temperature(salinity, temp_c, pressure_dbar);
     let ct = gsw::conversions::ct_from_pt(sa, pt).map_err(|_| bad())?;
     let rho = gsw::volume::rho(sa, ct, pressure_dbar).map_err(|_| bad())?;
-    if rho.is_finite() && rho > 900.0 && rho < 1200.0 { Ok(rho) } else { Err(bad()) }
+    if rho.is_finite() && rho > 900.0 && rho < 1200.0 {
+        Ok(rho)
+    } else {
+        Err(bad())
+    }
 }
 
 /// µmol/L → µmol/kg with the density in kg/m³.

@@ -35,8 +35,16 @@ pub fn check(column: &str, value: f64) -> Result<(), String> {
     let positive = STRICTLY_POSITIVE.contains(&column);
     let below = if positive { value <= lo } else { value < lo };
     if below || value > hi {
-        let unit = if unit.is_empty() { String::new() } else { format!(" {unit}") };
-        let lower = if positive { format!("above {lo}") } else { format!("from {lo}") };
+        let unit = if unit.is_empty() {
+            String::new()
+        } else {
+            format!(" {unit}")
+        };
+        let lower = if positive {
+            format!("above {lo}")
+        } else {
+            format!("from {lo}")
+        };
         return Err(format!(
             "{column} = {value}{unit} is outside the physical limit ({lower} to {hi}{unit})"
         ));

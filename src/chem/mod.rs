@@ -46,7 +46,13 @@ pub struct Conditions {
 impl Conditions {
     /// Surface water without nutrients.
     pub fn surface(temp_c: f64, salinity: f64) -> Self {
-        Conditions { temp_c, salinity, pressure_dbar: 0.0, silicate: 0.0, phosphate: 0.0 }
+        Conditions {
+            temp_c,
+            salinity,
+            pressure_dbar: 0.0,
+            silicate: 0.0,
+            phosphate: 0.0,
+        }
     }
 }
 
@@ -134,14 +140,32 @@ pub struct MethodSet {
 pub const FIXED_CITATIONS: &[(&str, &str)] = &[
     ("K0 and fugacity", "Weiss (1974), Mar. Chem. 2:203"),
     ("KB", "Dickson (1990), Deep-Sea Res. 37:755"),
-    ("KW, KP1–3, KSi", "Millero (1995), Geochim. Cosmochim. Acta 59:661"),
+    (
+        "KW, KP1–3, KSi",
+        "Millero (1995), Geochim. Cosmochim. Acta 59:661",
+    ),
     ("KSO4", "Dickson (1990), J. Chem. Thermodyn. 22:113"),
-    ("Total sulfate", "Morris & Riley (1966), Deep-Sea Res. 13:699"),
+    (
+        "Total sulfate",
+        "Morris & Riley (1966), Deep-Sea Res. 13:699",
+    ),
     ("Total fluoride", "Riley (1965), Deep-Sea Res. 12:219"),
-    ("Calcite and aragonite solubility", "Mucci (1983), Am. J. Sci. 283:780"),
-    ("Total calcium", "Riley & Tongudai (1967), Chem. Geol. 2:263"),
-    ("Pressure corrections", "Millero (1995), Geochim. Cosmochim. Acta 59:661"),
-    ("Water vapour pressure", "Weiss & Price (1980), Mar. Chem. 8:347"),
+    (
+        "Calcite and aragonite solubility",
+        "Mucci (1983), Am. J. Sci. 283:780",
+    ),
+    (
+        "Total calcium",
+        "Riley & Tongudai (1967), Chem. Geol. 2:263",
+    ),
+    (
+        "Pressure corrections",
+        "Millero (1995), Geochim. Cosmochim. Acta 59:661",
+    ),
+    (
+        "Water vapour pressure",
+        "Weiss & Price (1980), Mar. Chem. 8:347",
+    ),
 ];
 
 impl MethodSet {
@@ -152,7 +176,11 @@ impl MethodSet {
             ("Total boron".to_string(), self.boron.citation().to_string()),
             ("KF".to_string(), self.kf.citation().to_string()),
         ];
-        v.extend(FIXED_CITATIONS.iter().map(|(a, b)| (a.to_string(), b.to_string())));
+        v.extend(
+            FIXED_CITATIONS
+                .iter()
+                .map(|(a, b)| (a.to_string(), b.to_string())),
+        );
         v
     }
 
@@ -299,7 +327,11 @@ impl Constants {
     /// The constants shifted by a Monte Carlo draw (see [`Perturbation`]).
     pub fn perturbed(&self, p: &Perturbation) -> Constants {
         let shift = |k: f64, dpk: f64| if dpk == 0.0 { k } else { k * 10f64.powf(-dpk) };
-        let boron = if p.boron_factor == 0.0 { 1.0 } else { p.boron_factor };
+        let boron = if p.boron_factor == 0.0 {
+            1.0
+        } else {
+            p.boron_factor
+        };
         Constants {
             k0: shift(self.k0, p.pk0),
             k1: shift(self.k1, p.pk1),
@@ -369,7 +401,12 @@ impl Input {
     /// The value as given.
     pub fn value(&self) -> f64 {
         match *self {
-            Input::Ta(v) | Input::Dic(v) | Input::PhT(v) | Input::Pco2(v) | Input::Fco2(v) | Input::Co3(v) => v,
+            Input::Ta(v)
+            | Input::Dic(v)
+            | Input::PhT(v)
+            | Input::Pco2(v)
+            | Input::Fco2(v)
+            | Input::Co3(v) => v,
         }
     }
 }
@@ -417,7 +454,12 @@ impl fmt::Display for ChemError {
 impl std::error::Error for ChemError {}
 
 /// Convenience: constants for `cond` and `m`, then [`solve_pair`].
-pub fn solve(a: Input, b: Input, cond: &Conditions, m: &MethodSet) -> Result<CarbonateState, ChemError> {
+pub fn solve(
+    a: Input,
+    b: Input,
+    cond: &Conditions,
+    m: &MethodSet,
+) -> Result<CarbonateState, ChemError> {
     for (col, v) in [
         ("temp_c", cond.temp_c),
         ("salinity", cond.salinity),

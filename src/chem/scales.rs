@@ -46,13 +46,19 @@ impl FromStr for PhScale {
             .iter()
             .find(|(n, _)| *n == low || (low == "seawater" && *n == "sws"))
             .map(|(_, v)| *v)
-            .ok_or_else(|| format!("unknown pH scale '{s}' (expected one of: total, sws, free, nbs)"))
+            .ok_or_else(|| {
+                format!("unknown pH scale '{s}' (expected one of: total, sws, free, nbs)")
+            })
     }
 }
 
 impl fmt::Display for PhScale {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let name = Self::ALL.iter().find(|(_, v)| v == self).map(|(n, _)| *n).unwrap_or("total");
+        let name = Self::ALL
+            .iter()
+            .find(|(_, v)| v == self)
+            .map(|(n, _)| *n)
+            .unwrap_or("total");
         f.write_str(name)
     }
 }
@@ -71,8 +77,7 @@ fn log_factor_from_free(scale: PhScale, k: &Constants) -> f64 {
         PhScale::Total => free_to_total.log10(),
         PhScale::Seawater => (free_to_total + k.ft / k.kf).log10(),
         PhScale::Nbs => {
-            ((free_to_total + k.ft / k.kf) * nbs_activity_coefficient(k.temp_c, k.salinity))
-                .log10()
+            ((free_to_total + k.ft / k.kf) * nbs_activity_coefficient(k.temp_c, k.salinity)).log10()
         }
     }
 }

@@ -12,7 +12,7 @@
 //! TA = [HCO3⁻] + 2[CO3²⁻] + [B(OH)4⁻] + [OH⁻] + [HPO4²⁻] + 2[PO4³⁻] + [SiO(OH)3⁻]
 //!      − [H⁺]F − [HSO4⁻] − [HF] − [H3PO4]
 
-use super::{limits, CarbonateState, ChemError, Constants, Input};
+use super::{CarbonateState, ChemError, Constants, Input, limits};
 
 /// Relative [H⁺] step below which the iteration has converged.
 const H_TOL: f64 = 1e-12;
@@ -78,7 +78,11 @@ fn munhoven_initial_h(ta: f64, dic: f64, k: &Constants) -> f64 {
         return 1e-8;
     }
     let sd = d.sqrt();
-    let hmin = if a2 < 0.0 { (-a2 + sd) / 3.0 } else { -a1 / (a2 + sd) };
+    let hmin = if a2 < 0.0 {
+        (-a2 + sd) / 3.0
+    } else {
+        -a1 / (a2 + sd)
+    };
     let arg = -(a0 + hmin * (a1 + hmin * (a2 + hmin))) / sd;
     let h = hmin + arg.max(0.0).sqrt();
     if h.is_finite() && h > 0.0 { h } else { 1e-8 }
@@ -91,7 +95,11 @@ fn safeguarded_newton(
     h0: f64,
     g: impl Fn(f64) -> (f64, f64),
 ) -> Result<f64, ChemError> {
-    let mut h = if h0 > lo && h0 < hi { h0 } else { (lo * hi).sqrt() };
+    let mut h = if h0 > lo && h0 < hi {
+        h0
+    } else {
+        (lo * hi).sqrt()
+    };
     for _ in 0..MAX_ITER {
         let (val, der) = g(h);
         if !val.is_finite() {
@@ -127,11 +135,7 @@ fn h_bounds() -> (f64, f64) {
 
 /// Solve `g(H) = 0` for g decreasing in H over the pH search window, or explain which
 /// side the inputs fall off.
-fn solve_decreasing(
-    h0: f64,
-    g: impl Fn(f64) -> (f64, f64),
-    what: &str,
-) -> Result<f64, ChemError> {
+fn solve_decreasing(h0: f64, g: impl Fn(f64) -> (f64, f64), what: &str) -> Result<f64, ChemError> {
     let (lo, hi) = h_bounds();
     if g(lo).0 < 0.0 {
         return Err(ChemError::NoSolution(format!(
@@ -238,8 +242,17 @@ pub fn solve_pair(a: Input, b: Input, k: &Constants) -> Result<CarbonateState, C
         )));
     }
     let values = [
-        state.ta, state.dic, state.ph_t, state.pco2, state.fco2, state.hco3, state.co3,
-        state.co2aq, state.omega_ar, state.omega_ca, state.revelle,
+        state.ta,
+        state.dic,
+        state.ph_t,
+        state.pco2,
+        state.fco2,
+        state.hco3,
+        state.co3,
+        state.co2aq,
+        state.omega_ar,
+        state.omega_ca,
+        state.revelle,
     ];
     if values.iter().any(|v| !v.is_finite()) {
         return Err(ChemError::NoSolution("the solution is not finite".into()));
@@ -299,7 +312,9 @@ fn find_h_and_dic(kn: &Known, k: &Constants) -> Result<(f64, f64), ChemError> {
             let mut ph = PH_SEARCH.0;
             let mut prev_h = 10f64.powf(-ph);
             if g(prev_h).0 <= 0.0 {
-                return Err(ChemError::NoSolution("no seawater state matches this TA and CO3".into()));
+                return Err(ChemError::NoSolution(
+                    "no seawater state matches this TA and CO3".into(),
+                ));
             }
             while ph < PH_SEARCH.1 {
                 ph += 0.25;
@@ -316,14 +331,16 @@ fn find_h_and_dic(kn: &Known, k: &Constants) -> Result<(f64, f64), ChemError> {
                 prev_h = h;
             }
             Err(ChemError::NoSolution(
-                "no seawater state matches this TA and CO3: CO3 is too high for this alkalinity".into(),
+                "no seawater state matches this TA and CO3: CO3 is too high for this alkalinity"
+                    .into(),
             ))
         }
         (None, Some(dic), Some(h), None, None) => Ok((h, dic)),
         (None, Some(dic), None, Some(co2), None) => {
             if dic <= co2 {
                 return Err(ChemError::NoSolution(
-                    "DIC must exceed dissolved CO2 (K0·fCO2); this pCO2 is too high for this DIC".into(),
+                    "DIC must exceed dissolved CO2 (K0·fCO2); this pCO2 is too high for this DIC"
+                        .into(),
                 ));
             }
             // DIC/CO2 − 1 = K1/H + K1K2/H², solved for x = 1/H in a cancellation-free form.
@@ -346,7 +363,9 @@ fn find_h_and_dic(kn: &Known, k: &Constants) -> Result<(f64, f64), ChemError> {
             let h = (k1 * k2 * co2 / co3).sqrt();
             Ok((h, co2 * alpha_sum(h) / (h * h)))
         }
-        _ => Err(ChemError::NoSolution("exactly two distinct parameters are needed".into())),
+        _ => Err(ChemError::NoSolution(
+            "exactly two distinct parameters are needed".into(),
+        )),
     }
 }
 
@@ -381,8 +400,18 @@ mod tests {
     #[test]
     fn mocsy_check_at_100_dbar() {
         use super::super::{BoronTotal, KfSource};
-        let m = MethodSet { boron: BoronTotal::Uppstrom1974, kf: KfSource::DicksonRiley1979, ..Default::default() };
-        let c = Conditions { temp_c: 18.0, salinity: 35.0, pressure_dbar: 100.0, silicate: 0.0, phosphate: 0.0 };
+        let m = MethodSet {
+            boron: BoronTotal::Uppstrom1974,
+            kf: KfSource::DicksonRiley1979,
+            ..Default::default()
+        };
+        let c = Conditions {
+            temp_c: 18.0,
+            salinity: 35.0,
+            pressure_dbar: 100.0,
+            silicate: 0.0,
+            phosphate: 0.0,
+        };
         let st = solve(Input::Ta(2300.0), Input::Dic(2000.0), &c, &m).unwrap();
         assert!((st.ph_t - 8.14892578).abs() < 2e-4, "{st:?}");
         assert!((st.co3 / 210.31 - 1.0).abs() < 3e-4);
@@ -415,10 +444,22 @@ mod tests {
     fn impossible_inputs_are_errors_not_nans() {
         let c = Conditions::surface(25.0, 35.0);
         let m = MethodSet::default();
-        assert!(matches!(solve(Input::Pco2(400.0), Input::Fco2(400.0), &c, &m), Err(ChemError::InvalidPair(..))));
-        assert!(matches!(solve(Input::Ta(2300.0), Input::Ta(2300.0), &c, &m), Err(ChemError::InvalidPair(..))));
-        assert!(matches!(solve(Input::Pco2(-4.0), Input::Ta(2300.0), &c, &m), Err(ChemError::OutOfRange(_))));
-        assert!(matches!(solve(Input::Ta(f64::NAN), Input::Dic(2000.0), &c, &m), Err(ChemError::OutOfRange(_))));
+        assert!(matches!(
+            solve(Input::Pco2(400.0), Input::Fco2(400.0), &c, &m),
+            Err(ChemError::InvalidPair(..))
+        ));
+        assert!(matches!(
+            solve(Input::Ta(2300.0), Input::Ta(2300.0), &c, &m),
+            Err(ChemError::InvalidPair(..))
+        ));
+        assert!(matches!(
+            solve(Input::Pco2(-4.0), Input::Ta(2300.0), &c, &m),
+            Err(ChemError::OutOfRange(_))
+        ));
+        assert!(matches!(
+            solve(Input::Ta(f64::NAN), Input::Dic(2000.0), &c, &m),
+            Err(ChemError::OutOfRange(_))
+        ));
         // Alkalinity far above twice DIC: no state in the seawater range.
         assert!(solve(Input::Ta(4900.0), Input::Dic(100.0), &c, &m).is_err());
         // pH so low that no positive DIC matches this TA.

@@ -59,8 +59,8 @@ const CONSISTENCY: &[(&str, f64, bool)] = &[
 
 /// Output columns appended (or filled in place), in contract order.
 pub const OUTPUT_COLUMNS: [&str; 12] = [
-    "ta", "dic", "ph_t", "pco2", "fco2", "hco3", "co3", "co2aq", "omega_ar", "omega_ca",
-    "revelle", "problem",
+    "ta", "dic", "ph_t", "pco2", "fco2", "hco3", "co3", "co2aq", "omega_ar", "omega_ca", "revelle",
+    "problem",
 ];
 
 #[derive(Args, Debug)]
@@ -130,7 +130,11 @@ struct Layout {
 
 impl Layout {
     fn from_header(header: &csv::StringRecord) -> Layout {
-        let find = |name: &str| header.iter().position(|h| h.trim().eq_ignore_ascii_case(name));
+        let find = |name: &str| {
+            header
+                .iter()
+                .position(|h| h.trim().eq_ignore_ascii_case(name))
+        };
         let mut carbonate = Vec::new();
         for name in ["ta", "dic", "ph_t", "pco2", "fco2", "co3"] {
             if let Some(i) = find(name) {
@@ -168,12 +172,18 @@ struct RowOut {
     solved: bool,
 }
 
-fn cell<'a>(rec: &'a csv::StringRecord, idx: Option<usize>) -> Option<&'a str> {
-    idx.and_then(|i| rec.get(i)).map(str::trim).filter(|s| !s.is_empty())
+fn cell(rec: &csv::StringRecord, idx: Option<usize>) -> Option<&str> {
+    idx.and_then(|i| rec.get(i))
+        .map(str::trim)
+        .filter(|s| !s.is_empty())
 }
 
 /// Parse an optional numeric cell; `Err` names the column and the text.
-fn number(rec: &csv::StringRecord, idx: Option<usize>, column: &str) -> Result<Option<f64>, String> {
+fn number(
+    rec: &csv::StringRecord,
+    idx: Option<usize>,
+    column: &str,
+) -> Result<Option<f64>, String> {
     match cell(rec, idx) {
         None => Ok(None),
         Some(text) => match text.parse::<f64>() {
@@ -292,13 +302,19 @@ fn solve_row(
         (None, notes, false)
     };
     let parse = |idx, col: &str| number(rec, idx, col);
-    let (temp_c, salinity) = match (parse(layout.temp_c, "temp_c"), parse(layout.salinity, "salinity")) {
+    let (temp_c, salinity) = match (
+        parse(layout.temp_c, "temp_c"),
+        parse(layout.salinity, "salinity"),
+    ) {
         (Ok(Some(t)), Ok(Some(s))) => (t, s),
         (Err(e), _) | (_, Err(e)) => return fail(notes, e),
         (Ok(None), _) => return fail(notes, "temp_c is missing".into()),
         (_, Ok(None)) => return fail(notes, "salinity is missing".into()),
     };
-    let pressure = match (parse(layout.pressure_dbar, "pressure_dbar"), parse(layout.depth_m, "depth_m")) {
+    let pressure = match (
+        parse(layout.pressure_dbar, "pressure_dbar"),
+        parse(layout.depth_m, "depth_m"),
+    ) {
         (Err(e), _) | (_, Err(e)) => return fail(notes, e),
         (Ok(Some(p)), _) => ("pressure_dbar", p),
         // A depth in metres is taken as that many decibars (within 1 % at reef depths).
@@ -324,7 +340,13 @@ fn solve_row(
             return fail(notes, e);
         }
     }
-    let cond = Conditions { temp_c, salinity, pressure_dbar: pressure.1, silicate, phosphate };
+    let cond = Conditions {
+        temp_c,
+        salinity,
+        pressure_dbar: pressure.1,
+        silicate,
+        phosphate,
+    };
     let k = Constants::new(&cond, methods);
 
     let mut given: Vec<(&'static str, f64)> = Vec::new();
@@ -350,7 +372,11 @@ fn solve_row(
             notes,
             format!(
                 "two of ta, dic, ph_t, pco2/fco2, co3 are needed, this row gives {}",
-                if names.is_empty() { "none".to_string() } else { format!("{} only", names.join(", ")) }
+                if names.is_empty() {
+                    "none".to_string()
+                } else {
+                    format!("{} only", names.join(", "))
+                }
             ),
         );
     }
@@ -377,10 +403,22 @@ fn solve_row(
         }
         let calc = state_value(&state, name);
         if let Some(&(_, tol, relative)) = CONSISTENCY.iter().find(|(n, ..)| n == name) {
-            let diff = if relative { (measured - calc) / calc } else { measured - calc };
+            let diff = if relative {
+                (measured - calc) / calc
+            } else {
+                measured - calc
+            };
             if diff.abs() > tol {
-                let shown = if relative { format!("{:.1} %", diff * 100.0) } else { format!("{diff:.4}") };
-                let tol_s = if relative { format!("{:.0} %", tol * 100.0) } else { format!("{tol}") };
+                let shown = if relative {
+                    format!("{:.1} %", diff * 100.0)
+                } else {
+                    format!("{diff:.4}")
+                };
+                let tol_s = if relative {
+                    format!("{:.0} %", tol * 100.0)
+                } else {
+                    format!("{tol}")
+                };
                 notes.push(format!(
                     "warning: measured {name} {measured} differs from the value calculated from {a} + {b} ({}) by {shown} (tolerance {tol_s})",
                     {
@@ -395,7 +433,12 @@ fn solve_row(
     (Some(state), notes, true)
 }
 
-fn process(rec: &csv::StringRecord, layout: &Layout, methods: &MethodSet, ph_scale: PhScale) -> RowOut {
+fn process(
+    rec: &csv::StringRecord,
+    layout: &Layout,
+    methods: &MethodSet,
+    ph_scale: PhScale,
+) -> RowOut {
     let (state, notes, solved) = solve_row(rec, layout, methods, ph_scale);
     // The text of output column `k`, or None for an unsolved value (an in-place column then
     // keeps the input's text).
@@ -418,7 +461,10 @@ fn process(rec: &csv::StringRecord, layout: &Layout, methods: &MethodSet, ph_sca
             false
         }
     };
-    let mut fields = csv::ByteRecord::with_capacity(rec.as_slice().len() + 160, layout.input_width + OUTPUT_COLUMNS.len());
+    let mut fields = csv::ByteRecord::with_capacity(
+        rec.as_slice().len() + 160,
+        layout.input_width + OUTPUT_COLUMNS.len(),
+    );
     for i in 0..layout.input_width {
         let input = rec.get(i).unwrap_or("");
         match layout.outputs.iter().position(|slot| *slot == Some(i)) {
@@ -453,7 +499,10 @@ pub fn solve_stream<R: Read, W: Write>(
     ph_scale: PhScale,
 ) -> Result<SolveSummary, String> {
     let mut rdr = csv::ReaderBuilder::new().flexible(true).from_reader(reader);
-    let header = rdr.headers().map_err(|e| format!("cannot read the header: {e}"))?.clone();
+    let header = rdr
+        .headers()
+        .map_err(|e| format!("cannot read the header: {e}"))?
+        .clone();
     if header.iter().all(|h| h.trim().is_empty()) {
         return Err("the file has no header row".into());
     }
@@ -471,7 +520,8 @@ pub fn solve_stream<R: Read, W: Write>(
         ));
     }
     let mut wtr = csv::WriterBuilder::new().flexible(true).from_writer(writer);
-    wtr.write_record(layout.output_header(&header)).map_err(|e| e.to_string())?;
+    wtr.write_record(layout.output_header(&header))
+        .map_err(|e| e.to_string())?;
     let mut summary = SolveSummary::default();
     let mut chunk: Vec<csv::StringRecord> = Vec::with_capacity(CHUNK_ROWS);
     let mut records = rdr.records();
@@ -496,14 +546,17 @@ pub fn solve_stream<R: Read, W: Write>(
         if chunk.is_empty() {
             break;
         }
-        let outs: Vec<RowOut> =
-            chunk.par_iter().map(|r| process(r, &layout, methods, ph_scale)).collect();
+        let outs: Vec<RowOut> = chunk
+            .par_iter()
+            .map(|r| process(r, &layout, methods, ph_scale))
+            .collect();
         for o in outs {
             summary.rows += 1;
             if !o.solved {
                 summary.unsolved += 1;
             }
-            wtr.write_byte_record(&o.fields).map_err(|e| e.to_string())?;
+            wtr.write_byte_record(&o.fields)
+                .map_err(|e| e.to_string())?;
         }
     }
     wtr.flush().map_err(|e| e.to_string())?;
@@ -512,11 +565,18 @@ pub fn solve_stream<R: Read, W: Write>(
 
 /// Run the command; returns the process exit status.
 pub fn run(args: &SolveArgs) -> Result<SolveSummary, String> {
-    let methods = MethodSet { k1k2: args.k1k2.0, boron: args.boron.0, kf: args.kf.0 };
+    let methods = MethodSet {
+        k1k2: args.k1k2.0,
+        boron: args.boron.0,
+        kf: args.kf.0,
+    };
     let ph_scale = args.ph_scale.0;
     let from_stdin = args.input.as_os_str() == "-";
     let to_stdout = args.output.as_os_str() == "-";
-    if !from_stdin && !to_stdout && fsio::is_same_file_as_any(&args.output, &[args.input.clone()]) {
+    if !from_stdin
+        && !to_stdout
+        && fsio::is_same_file_as_any(&args.output, std::slice::from_ref(&args.input))
+    {
         return Err(format!(
             "{}: the output would overwrite the input; choose another -o path",
             args.output.display()
@@ -536,7 +596,11 @@ pub fn run(args: &SolveArgs) -> Result<SolveSummary, String> {
         Box::new(BufReader::with_capacity(1 << 20, f))
     };
     let label = |e: String| {
-        if from_stdin { format!("<stdin>: {e}") } else { format!("{}: {e}", args.input.display()) }
+        if from_stdin {
+            format!("<stdin>: {e}")
+        } else {
+            format!("{}: {e}", args.input.display())
+        }
     };
     if to_stdout {
         let out = io::stdout().lock();
@@ -570,7 +634,13 @@ mod tests {
 
     fn run_str(input: &str) -> (String, SolveSummary) {
         let mut out = Vec::new();
-        let s = solve_stream(input.as_bytes(), &mut out, &MethodSet::default(), PhScale::Total).unwrap();
+        let s = solve_stream(
+            input.as_bytes(),
+            &mut out,
+            &MethodSet::default(),
+            PhScale::Total,
+        )
+        .unwrap();
         (String::from_utf8(out).unwrap(), s)
     }
 
@@ -584,10 +654,19 @@ mod tests {
         );
         let row = lines.next().unwrap();
         // PyCO2SYS 1.8.3.4, default set (fact sheet §7g): pH_T 8.040225, Omega_ar 3.346727.
-        assert!(row.starts_with("A,25,35,2300.0000,2000.0000,x,8.040225,402.69"), "{row}");
+        assert!(
+            row.starts_with("A,25,35,2300.0000,2000.0000,x,8.040225,402.69"),
+            "{row}"
+        );
         assert!(row.contains(",3.34673,"), "{row}");
         assert!(row.ends_with(','), "problem column should be empty: {row}");
-        assert_eq!(s, SolveSummary { rows: 1, unsolved: 0 });
+        assert_eq!(
+            s,
+            SolveSummary {
+                rows: 1,
+                unsolved: 0
+            }
+        );
     }
 
     #[test]
@@ -602,21 +681,44 @@ mod tests {
         let (out, s) = run_str(input);
         let lines: Vec<&str> = out.lines().collect();
         assert_eq!(lines.len(), 7, "every row is written");
-        assert!(lines[1].contains("ta: 'abc' is not a number"), "{}", lines[1]);
-        assert!(lines[2].contains("pco2 with fco2 is not a valid pair"), "{}", lines[2]);
+        assert!(
+            lines[1].contains("ta: 'abc' is not a number"),
+            "{}",
+            lines[1]
+        );
+        assert!(
+            lines[2].contains("pco2 with fco2 is not a valid pair"),
+            "{}",
+            lines[2]
+        );
         assert!(lines[3].contains("this row gives ta only"), "{}", lines[3]);
-        assert!(lines[4].contains("ta = -5") && lines[4].contains("physical limit"), "{}", lines[4]);
+        assert!(
+            lines[4].contains("ta = -5") && lines[4].contains("physical limit"),
+            "{}",
+            lines[4]
+        );
         assert!(lines[5].contains("salinity = 60"), "{}", lines[5]);
-        assert_eq!(s, SolveSummary { rows: 6, unsolved: 5 });
+        assert_eq!(
+            s,
+            SolveSummary {
+                rows: 6,
+                unsolved: 5
+            }
+        );
     }
 
     #[test]
     fn over_determined_rows_are_checked() {
         // pCO2 402.69 is what TA 2300 / DIC 2000 give; 500 is not.
-        let (out, _) = run_str("temp_c,salinity,ta,dic,pco2\n25,35,2300,2000,402.7\n25,35,2300,2000,500\n");
+        let (out, _) =
+            run_str("temp_c,salinity,ta,dic,pco2\n25,35,2300,2000,402.7\n25,35,2300,2000,500\n");
         let lines: Vec<&str> = out.lines().collect();
         assert!(lines[1].contains("note: solved from ta + dic") && !lines[1].contains("warning"));
-        assert!(lines[2].contains("warning: measured pco2 500"), "{}", lines[2]);
+        assert!(
+            lines[2].contains("warning: measured pco2 500"),
+            "{}",
+            lines[2]
+        );
     }
 
     fn fixed(v: f64, d: u32) -> String {
@@ -654,7 +756,10 @@ mod tests {
     #[test]
     fn out_of_fitted_range_is_solved_and_flagged() {
         let (out, s) = run_str("temp_c,salinity,ta,dic\n0.5,35,2300,2100\n");
-        assert!(out.contains("warning: temp_c 0.5 °C is outside the K1/K2 fitted range"), "{out}");
+        assert!(
+            out.contains("warning: temp_c 0.5 °C is outside the K1/K2 fitted range"),
+            "{out}"
+        );
         assert_eq!(s.unsolved, 0);
     }
 }
