@@ -38,10 +38,39 @@ where
         Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
         _ => PathBuf::from("."),
     };
+    // Say what is wrong with the folder rather than naming the temporary file.
+    match std::fs::metadata(&dir) {
+        Ok(m) if !m.is_dir() => {
+            return Err(io::Error::other(format!(
+                "{} is not a folder",
+                dir.display()
+            )));
+        }
+        Err(e) if e.kind() == io::ErrorKind::NotFound => {
+            return Err(io::Error::new(
+                e.kind(),
+                format!(
+                    "the folder {} does not exist; create it first",
+                    dir.display()
+                ),
+            ));
+        }
+        _ => {}
+    }
     let tmp = tempfile::Builder::new()
         .prefix(".calcisite-")
         .suffix(".part")
-        .tempfile_in(&dir)?;
+        .tempfile_in(&dir)
+        .map_err(|e| {
+            io::Error::new(
+                e.kind(),
+                format!(
+                    "cannot create a file in the folder {}: {}",
+                    dir.display(),
+                    io::Error::from(e.kind())
+                ),
+            )
+        })?;
     let tmp_path = tmp.path().to_path_buf();
     if let Ok(mut list) = PENDING.lock() {
         list.push(tmp_path.clone());
@@ -56,7 +85,8 @@ where
         #[cfg(unix)]
         {
             use std::os::unix::fs::PermissionsExt;
-            tmp.as_file().set_permissions(std::fs::Permissions::from_mode(0o644))?;
+            tmp.as_file()
+                .set_permissions(std::fs::Permissions::from_mode(0o644))?;
         }
         tmp.persist(path).map_err(|e| e.error)?;
         Ok(())

@@ -315,7 +315,7 @@ fn projection_settings_the_outlook_refuses_are_caught_by_check() {
         "{e}"
     );
     assert!(
-        e.contains("--> site.toml:13:1, field `calcification`"),
+        e.contains("--> site.toml:14:30, field `calcification.relationships[1]`"),
         "{e}"
     );
     assert!(e.contains("silverman2009"), "{e}");

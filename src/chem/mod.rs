@@ -192,13 +192,13 @@ impl MethodSet {
         let mut check = |what: &str, cite: &str, ((t0, t1), (s0, s1)): ((f64, f64), (f64, f64))| {
             if c.temp_c < t0 || c.temp_c > t1 {
                 out.push(format!(
-                    "temp_c {} °C is outside the {what} fitted range {t0}–{t1} °C ({cite})",
+                    "temp_c {:.2} °C is outside the {what} fitted range {t0}–{t1} °C ({cite})",
                     c.temp_c
                 ));
             }
             if c.salinity < s0 || c.salinity > s1 {
                 out.push(format!(
-                    "salinity {} is outside the {what} fitted range {s0}–{s1} ({cite})",
+                    "salinity {:.3} is outside the {what} fitted range {s0}–{s1} ({cite})",
                     c.salinity
                 ));
             }

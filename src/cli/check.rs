@@ -50,7 +50,7 @@ pub fn run_check(args: &CheckArgs) -> i32 {
     let loaded = load_site(&args.site).and_then(|site| {
         // The projection settings are checked here too, so that `check` passing means
         // `project` and `report` accept the site file.
-        match crate::outlook::from_loaded_site(&site) {
+        match crate::outlook::from_site::projection_settings(&site) {
             Ok(_) => Ok(site),
             Err(ds) => {
                 let mut all: Diagnostics = ds.into_iter().map(|d| site.locate(d)).collect();
@@ -61,18 +61,18 @@ pub fn run_check(args: &CheckArgs) -> i32 {
     });
     match loaded {
         Ok(site) => {
-            match args.format {
-                CheckFormat::Text => print!("{}", summary_text(&site)),
+            let printed = match args.format {
+                CheckFormat::Text => super::print_out(&summary_text(&site)),
                 CheckFormat::Json => print_json(&JsonOut {
                     status: "ok",
                     site: Some(&site),
                     diagnostics: &site.findings,
                 }),
-            }
+            };
             if !site.findings.is_empty() {
                 eprint!("{}", site.findings.render(colour));
             }
-            EXIT_OK
+            if printed { EXIT_OK } else { EXIT_INPUT }
         }
         Err(diags) => {
             if args.format == CheckFormat::Json {
@@ -92,10 +92,14 @@ pub fn run_check(args: &CheckArgs) -> i32 {
     }
 }
 
-fn print_json<T: Serialize>(v: &T) {
+/// Prints `v` as JSON on standard output; false when it could not be written.
+fn print_json<T: Serialize>(v: &T) -> bool {
     match serde_json::to_string_pretty(v) {
-        Ok(s) => println!("{s}"),
-        Err(e) => eprintln!("error: cannot write JSON: {e}"),
+        Ok(s) => super::print_out(&format!("{s}\n")),
+        Err(e) => {
+            eprintln!("error: cannot write JSON: {e}");
+            false
+        }
     }
 }
 

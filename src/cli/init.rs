@@ -23,14 +23,14 @@ pub fn run_init(args: &InitArgs) -> i32 {
     match write_templates(&args.dir) {
         Ok(files) => {
             for f in &files {
-                println!("wrote {}", f.display());
+                super::print_out(&format!("wrote {}\n", f.display()));
             }
             if let Some(site) = files.first() {
-                println!(
-                    "next: fill in the site values in {} and one row per sample in the CSV, then run `calcisite check {}`",
+                super::print_out(&format!(
+                    "next: fill in the site values in {} and one row per sample in the CSV, then run `calcisite check {}`\n",
                     site.display(),
                     site.display()
-                );
+                ));
             }
             super::EXIT_OK
         }

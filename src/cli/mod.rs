@@ -16,6 +16,23 @@ pub mod project;
 pub mod report;
 pub mod solve;
 
+/// Writes `text` to standard output. A full or closed standard output is reported on standard
+/// error (`print!` would panic instead); returns false when the text could not be written.
+pub fn print_out(text: &str) -> bool {
+    use std::io::Write;
+    let mut out = std::io::stdout().lock();
+    match out.write_all(text.as_bytes()).and_then(|()| out.flush()) {
+        Ok(()) => true,
+        Err(e) => {
+            let _ = writeln!(
+                std::io::stderr(),
+                "error: cannot write to standard output: {e}"
+            );
+            false
+        }
+    }
+}
+
 /// Success.
 pub const EXIT_OK: i32 = 0;
 /// A file could not be read or is invalid; nothing was written.

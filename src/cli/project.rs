@@ -152,14 +152,20 @@ pub fn load_and_project(
 
 /// True when an outlook could not solve some ensemble members.
 pub fn has_unsolved(outlook: &Outlook) -> bool {
-    outlook.notes.iter().any(|n| n.contains("could not be solved"))
+    outlook
+        .notes
+        .iter()
+        .any(|n| n.contains("could not be solved"))
 }
 
 /// Runs `project`; returns the exit status.
 pub fn run_project(args: &ProjectArgs) -> i32 {
     let out_path = args.output.as_ref().filter(|p| p.as_os_str() != "-");
-    let overrides =
-        EnsembleOverrides { seed: args.seed, members: args.members, threads: args.threads };
+    let overrides = EnsembleOverrides {
+        seed: args.seed,
+        members: args.members,
+        threads: args.threads,
+    };
     let (loaded, outlook) = match load_and_project(&args.site, overrides, true, true) {
         Ok(v) => v,
         Err(code) => return code,

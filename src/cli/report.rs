@@ -105,7 +105,7 @@ pub fn run_report(args: &ReportArgs) -> i32 {
         return match dump_templates(dir) {
             Ok(files) => {
                 for f in files {
-                    println!("wrote {}", f.display());
+                    super::print_out(&format!("wrote {}\n", f.display()));
                 }
                 EXIT_OK
             }
@@ -139,7 +139,11 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
         eprintln!("error: no output file given (use -o FILE.pdf)");
         return EXIT_INPUT;
     };
-    let overrides = EnsembleOverrides { seed: args.seed, members: None, threads: None };
+    let overrides = EnsembleOverrides {
+        seed: args.seed,
+        members: None,
+        threads: None,
+    };
     let single = args.sites.len() == 1;
     let results: Vec<_> = args
         .sites
@@ -163,8 +167,10 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
         );
         return EXIT_INPUT;
     }
-    let inputs: Vec<PathBuf> =
-        runs.iter().flat_map(|r| r.loaded.input_files.iter().cloned()).collect();
+    let inputs: Vec<PathBuf> = runs
+        .iter()
+        .flat_map(|r| r.loaded.input_files.iter().cloned())
+        .collect();
     for candidate in std::iter::once(out).chain(args.data_out.as_deref()) {
         if crate::fsio::is_same_file_as_any(candidate, &inputs) {
             eprintln!(
@@ -190,7 +196,10 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
     if args.pdfa {
         command.push_str(" --pdfa");
     }
-    let opts = BuildOptions { appendix: args.appendix, command: Some(command) };
+    let opts = BuildOptions {
+        appendix: args.appendix,
+        command: Some(command),
+    };
     let model = match build_model(&runs, &opts) {
         Ok(m) => m,
         Err(e) => {

@@ -757,7 +757,7 @@ mod tests {
     fn out_of_fitted_range_is_solved_and_flagged() {
         let (out, s) = run_str("temp_c,salinity,ta,dic\n0.5,35,2300,2100\n");
         assert!(
-            out.contains("warning: temp_c 0.5 °C is outside the K1/K2 fitted range"),
+            out.contains("warning: temp_c 0.50 °C is outside the K1/K2 fitted range"),
             "{out}"
         );
         assert_eq!(s.unsolved, 0);

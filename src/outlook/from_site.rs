@@ -26,6 +26,26 @@ use super::{PathwaySpec, ProjectionSettings, SiteInput};
 pub fn from_loaded_site(
     loaded: &LoadedSite,
 ) -> Result<(SiteInput, ProjectionSettings), Diagnostics> {
+    let settings = projection_settings(loaded)?;
+    let ta_fit_rmse = loaded.baseline.ta_salinity.as_ref().map(|f| f.rmse_umol_kg);
+    let records: Vec<ProjectionRecord> = loaded
+        .samples
+        .iter()
+        .filter_map(|smp| record_of(smp, ta_fit_rmse))
+        .collect();
+    let site = SiteInput {
+        name: loaded.site.site.name.clone(),
+        seasons: loaded.seasons.iter().map(|s| s.name.clone()).collect(),
+        records,
+        methods: loaded.methods,
+        observed: Observed::noaa(),
+    };
+    Ok((site, settings))
+}
+
+/// The projection settings of a loaded site, checked, without building the per-record
+/// inputs (so that `check` on a million-row series does not hold a second copy of it).
+pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Diagnostics> {
     let file = loaded.path.as_path();
     let err = |field: &str, message: String, help: &str| {
         let mut d = Diagnostic::error(message).with_file(file).with_field(field);
@@ -37,27 +57,13 @@ pub fn from_loaded_site(
     let site_file = &loaded.site;
     let observed = Observed::noaa();
 
-    // Records.
-    let ta_fit_rmse = loaded.baseline.ta_salinity.as_ref().map(|f| f.rmse_umol_kg);
-    let records: Vec<ProjectionRecord> = loaded
-        .samples
-        .iter()
-        .filter_map(|smp| record_of(smp, ta_fit_rmse))
-        .collect();
-    if records.is_empty() {
+    if !loaded.samples.iter().any(|smp| smp.state.is_some()) {
         return Err(err(
             "records",
             "no record row has a solved carbonate state, so nothing can be projected".into(),
             "each row needs two of TA, DIC, pH, pCO2/fCO2 (run `calcisite check` for details)",
         ));
     }
-    let site = SiteInput {
-        name: site_file.site.name.clone(),
-        seasons: loaded.seasons.iter().map(|s| s.name.clone()).collect(),
-        records,
-        methods: loaded.methods,
-        observed: observed.clone(),
-    };
 
     // Pathways.
     let pr = &site_file.projection;
@@ -156,11 +162,23 @@ pub fn from_loaded_site(
         &site_file.calcification.relationships,
     )
     .map_err(|m| {
-        err(
-            "calcification",
-            m,
-            "known ids: chan2013, silverman2009, langdon2005",
-        )
+        // Point at the unknown id itself, with the closest known one.
+        let ids = &site_file.calcification.relationships;
+        let known: Vec<&str> = super::calcification::builtin_relationships()
+            .iter()
+            .map(|r| r.id)
+            .collect();
+        let bad = ids.iter().position(|id| !known.contains(&id.trim()));
+        let field = bad.map_or_else(
+            || "calcification".to_string(),
+            |i| format!("calcification.relationships[{i}]"),
+        );
+        let hint = bad
+            .and_then(|i| ids.get(i))
+            .and_then(|id| crate::site::spans::did_you_mean(id.trim(), known.iter().copied()))
+            .map(|s| format!("did you mean `{s}`? "))
+            .unwrap_or_default();
+        err(&field, m, &format!("{hint}known ids: {}", known.join(", ")))
     })?;
     let scenarios = site_file
         .scenario
@@ -200,7 +218,7 @@ pub fn from_loaded_site(
         classes,
         calcification,
     };
-    Ok((site, settings))
+    Ok(settings)
 }
 
 /// The projection record of one sample (`None` when its state was not solved).

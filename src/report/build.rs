@@ -10,9 +10,9 @@ use chrono::{Datelike, Timelike};
 use super::model::*;
 use crate::outlook::output::{CrossingKind, CrossingRow};
 use crate::outlook::{Outlook, QUANTILE_LEVELS};
+use crate::site::LoadedSite;
 use crate::site::baseline::Stats;
 use crate::site::schema::MONTH_NAMES;
-use crate::site::LoadedSite;
 
 /// The base case (no local scenario) in outlook rows.
 const BASE_SCENARIO: &str = "none";
@@ -42,20 +42,24 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
     let first_site = &first.loaded.site;
     let title = if runs.len() == 1 {
         first_site.report.title.clone().unwrap_or_else(|| {
-            format!("Carbonate chemistry feasibility screening: {}", first_site.site.name)
+            format!(
+                "Carbonate chemistry feasibility screening: {}",
+                first_site.site.name
+            )
         })
     } else {
         "Candidate reef sites compared: carbonate chemistry feasibility screening".to_string()
     };
+    // One site: its region. Several: their common region, if they share one (the site names
+    // are listed on the first page anyway).
     let subtitle = if runs.len() == 1 {
         first_site.site.region.clone()
     } else {
-        Some(
+        let region = first_site.site.region.clone();
+        region.filter(|r| {
             runs.iter()
-                .map(|r| r.loaded.site.site.name.as_str())
-                .collect::<Vec<_>>()
-                .join(" · "),
-        )
+                .all(|x| x.loaded.site.site.region.as_ref() == Some(r))
+        })
     };
 
     let timestamp = report_time(runs)?;
@@ -80,9 +84,18 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
         setting("Ensemble members", settings.members.to_string()),
         setting("Seed", settings.seed.to_string()),
         setting("Disequilibrium", settings.disequilibrium.clone()),
-        setting("Warming", if settings.warming { "on" } else { "off" }.to_string()),
-        setting("Constant uncertainties", settings.constants_uncertainty.clone()),
-        setting("Measurement uncertainties", settings.measurement_uncertainty.clone()),
+        setting(
+            "Warming",
+            if settings.warming { "on" } else { "off" }.to_string(),
+        ),
+        setting(
+            "Constant uncertainties",
+            settings.constants_uncertainty.clone(),
+        ),
+        setting(
+            "Measurement uncertainties",
+            settings.measurement_uncertainty.clone(),
+        ),
         setting("Record variability", settings.record_variability.clone()),
     ];
     for run in runs {
@@ -114,8 +127,16 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
     Ok(ReportModel {
         title,
         subtitle,
-        prepared_for: first_site.report.prepared_for.clone().filter(|s| !s.is_empty()),
-        prepared_by: first_site.report.prepared_by.clone().filter(|s| !s.is_empty()),
+        prepared_for: first_site
+            .report
+            .prepared_for
+            .clone()
+            .filter(|s| !s.is_empty()),
+        prepared_by: first_site
+            .report
+            .prepared_by
+            .clone()
+            .filter(|s| !s.is_empty()),
         tool: ToolInfo {
             name: "calcisite".to_string(),
             version: env!("CARGO_PKG_VERSION").to_string(),
@@ -139,15 +160,19 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
 }
 
 fn setting(name: &str, value: String) -> Setting {
-    Setting { name: name.to_string(), value }
+    Setting {
+        name: name.to_string(),
+        value,
+    }
 }
 
 /// The report date: the first site's `[report] date`, else the newest sample time (UTC),
 /// so that the same inputs always give the same date.
 fn report_time(runs: &[SiteRun<'_>]) -> Result<ReportTime, String> {
     if let Some(date) = runs.iter().find_map(|r| r.loaded.site.report.date.clone()) {
-        let d = chrono::NaiveDate::parse_from_str(date.trim(), "%Y-%m-%d")
-            .map_err(|_| format!("[report] date = {date:?} is not a date of the form YYYY-MM-DD"))?;
+        let d = chrono::NaiveDate::parse_from_str(date.trim(), "%Y-%m-%d").map_err(|_| {
+            format!("[report] date = {date:?} is not a date of the form YYYY-MM-DD")
+        })?;
         return ReportTime::from_ymd(d.year(), d.month() as u8, d.day() as u8)
             .ok_or_else(|| format!("[report] date = {date:?} is out of range"));
     }
@@ -168,8 +193,18 @@ fn report_time(runs: &[SiteRun<'_>]) -> Result<ReportTime, String> {
 
 fn threshold_classes(outlook: &Outlook) -> ThresholdClasses {
     ThresholdClasses {
-        levels: outlook.classes.bands.iter().filter_map(|b| b.min_omega_ar).collect(),
-        labels: outlook.classes.bands.iter().map(|b| b.name.clone()).collect(),
+        levels: outlook
+            .classes
+            .bands
+            .iter()
+            .filter_map(|b| b.min_omega_ar)
+            .collect(),
+        labels: outlook
+            .classes
+            .bands
+            .iter()
+            .map(|b| b.name.clone())
+            .collect(),
         citation: outlook.classes.source.clone(),
     }
 }
@@ -177,8 +212,11 @@ fn threshold_classes(outlook: &Outlook) -> ThresholdClasses {
 /// Table horizons: the preferred years the projection has, else up to five of its years
 /// spread evenly (always including the last).
 fn horizons(years: &[i32]) -> Vec<i32> {
-    let preferred: Vec<i32> =
-        PREFERRED_HORIZONS.iter().copied().filter(|y| years.contains(y)).collect();
+    let preferred: Vec<i32> = PREFERRED_HORIZONS
+        .iter()
+        .copied()
+        .filter(|y| years.contains(y))
+        .collect();
     if preferred.len() >= 2 {
         return preferred;
     }
@@ -186,7 +224,9 @@ fn horizons(years: &[i32]) -> Vec<i32> {
         return years.to_vec();
     }
     let n = years.len() - 1;
-    let mut out: Vec<i32> = (0..5).filter_map(|i| years.get(i * n / 4).copied()).collect();
+    let mut out: Vec<i32> = (0..5)
+        .filter_map(|i| years.get(i * n / 4).copied())
+        .collect();
     out.dedup();
     out
 }
@@ -201,7 +241,12 @@ fn pathway_list(runs: &[SiteRun<'_>]) -> Vec<PathwayInfo> {
             if !seen.insert(p.name.clone()) {
                 continue;
             }
-            let at = |y: i32| years.iter().position(|&v| v == y).and_then(|i| p.xco2_ppm.get(i));
+            let at = |y: i32| {
+                years
+                    .iter()
+                    .position(|&v| v == y)
+                    .and_then(|i| p.xco2_ppm.get(i))
+            };
             let last = p.xco2_ppm.last().copied().unwrap_or(f64::NAN);
             let description = match (at(2050), years.last()) {
                 (Some(v50), Some(&ly)) if ly != 2050 => {
@@ -226,12 +271,23 @@ fn pathway_list(runs: &[SiteRun<'_>]) -> Vec<PathwayInfo> {
 }
 
 fn stat(s: &Stats) -> Option<Stat> {
-    Some(Stat { mean: s.mean?, sd: s.sd.unwrap_or(0.0), min: s.min?, max: s.max? })
+    Some(Stat {
+        mean: s.mean?,
+        sd: s.sd.unwrap_or(0.0),
+        min: s.min?,
+        max: s.max?,
+    })
 }
 
 fn quantiles(q: &[f64; 5]) -> Quantiles {
     debug_assert_eq!(QUANTILE_LEVELS, [5, 25, 50, 75, 95]);
-    Quantiles { p05: q[0], p25: q[1], p50: q[2], p75: q[3], p95: q[4] }
+    Quantiles {
+        p05: q[0],
+        p25: q[1],
+        p50: q[2],
+        p75: q[3],
+        p95: q[4],
+    }
 }
 
 fn months_text(months: &[u32]) -> String {
@@ -243,39 +299,160 @@ fn months_text(months: &[u32]) -> String {
         .join(", ")
 }
 
-/// Findings grouped by kind and file: the first message of each group stands for it, with
-/// the number of rows and their line numbers (runs of consecutive lines shortened).
+/// Findings grouped by kind: the first message of each group stands for it, with the number of
+/// rows and, per file, their line numbers (runs of consecutive lines shortened). The site
+/// stage's own summaries ("275 more rows like the one above (kind) on lines …") are folded
+/// into the group they continue, so a long sensor series gives one line per kind of finding.
 fn grouped_findings(loaded: &LoadedSite) -> Vec<QcFinding> {
-    let mut groups: Vec<(String, QcLevel, String, Option<String>, Vec<usize>, usize)> = Vec::new();
+    struct Group {
+        key: String,
+        level: QcLevel,
+        message: String,
+        /// (file, lines) in order of first appearance.
+        files: Vec<(Option<String>, Vec<usize>)>,
+        count: usize,
+    }
+    let mut groups: Vec<Group> = Vec::new();
+    let mut last_group: Option<usize> = None;
     for d in loaded.findings.iter() {
         let level = match d.severity {
             crate::diag::Severity::Error | crate::diag::Severity::Warning => QcLevel::Warning,
             crate::diag::Severity::Note => QcLevel::Note,
         };
-        let kind: String =
-            d.message.chars().map(|c| if c.is_ascii_digit() { '#' } else { c }).collect();
         let file = d.file.as_deref().map(display_path);
-        let key = format!("{kind}\u{1f}{}", file.as_deref().unwrap_or(""));
-        match groups.iter_mut().find(|g| g.0 == key) {
-            Some(g) => {
-                g.5 += 1;
-                g.4.extend(d.line);
+        if let Some((more, lines)) = parse_more_rows(&d.message)
+            && let Some(g) = last_group.and_then(|i| groups.get_mut(i))
+        {
+            g.count += more;
+            match g.files.iter_mut().find(|(f, _)| *f == file) {
+                Some((_, l)) => l.extend(lines),
+                None => g.files.push((file, lines)),
             }
-            None => groups.push((key, level, d.message.clone(), file, d.line.into_iter().collect(), 1)),
+            continue;
         }
+        let key: String = d
+            .message
+            .chars()
+            .map(|c| if c.is_ascii_digit() { '#' } else { c })
+            .collect();
+        let i = match groups.iter().position(|g| g.key == key) {
+            Some(i) => i,
+            None => {
+                groups.push(Group {
+                    key,
+                    level,
+                    message: d.message.clone(),
+                    files: Vec::new(),
+                    count: 0,
+                });
+                groups.len() - 1
+            }
+        };
+        if let Some(g) = groups.get_mut(i) {
+            g.count += 1;
+            match g.files.iter_mut().find(|(f, _)| *f == file) {
+                Some((_, l)) => l.extend(d.line),
+                None => g.files.push((file, d.line.into_iter().collect())),
+            }
+        }
+        last_group = Some(i);
     }
     groups
         .into_iter()
-        .map(|(_, level, message, file, lines, count)| {
-            let location = match (file, lines.is_empty()) {
-                (Some(f), true) => Some(f),
-                (Some(f), false) => Some(format!("{f}: {}", line_ranges(&lines))),
-                (None, _) => None,
+        .map(|g| {
+            let places: Vec<String> = g
+                .files
+                .iter()
+                .filter_map(|(f, lines)| match (f, lines.is_empty()) {
+                    (Some(f), true) => Some(f.clone()),
+                    (Some(f), false) => Some(format!("{f}: {}", line_ranges(lines))),
+                    (None, _) => None,
+                })
+                .collect();
+            let location = (!places.is_empty()).then(|| places.join("; "));
+            let message = if g.count > 1 {
+                format!(
+                    "{} (the first of {} rows)",
+                    tidy_numbers(&g.message),
+                    g.count
+                )
+            } else {
+                tidy_numbers(&g.message)
             };
-            let message = if count > 1 { format!("{message} (first of {count})") } else { message };
-            QcFinding { level, count, message, location }
+            QcFinding {
+                level: g.level,
+                count: g.count,
+                message,
+                location,
+            }
         })
         .collect()
+}
+
+/// Reads the site stage's summary line "N more rows like the one above (kind) on lines a–b, c"
+/// (see `site::qc`): the count and the lines it lists (a trailing "and K further ranges" is
+/// counted but its lines are not known).
+fn parse_more_rows(message: &str) -> Option<(usize, Vec<usize>)> {
+    let (count, rest) = message.split_once(" more ")?;
+    let count: usize = count.trim().parse().ok()?;
+    if !(rest.starts_with("rows like the one above") || rest.starts_with("row like the one above"))
+    {
+        return None;
+    }
+    let (_, ranges) = rest.split_once(" on lines ")?;
+    let ranges = ranges.split(" and ").next().unwrap_or_default();
+    let mut lines = Vec::new();
+    for part in ranges.split(',').map(str::trim).filter(|p| !p.is_empty()) {
+        let (a, b) = part.split_once('–').unwrap_or((part, part));
+        let (Ok(a), Ok(b)) = (a.trim().parse::<usize>(), b.trim().parse::<usize>()) else {
+            continue;
+        };
+        // A listed run can be long; the report shows runs, so its ends are enough.
+        if b >= a && b - a <= 100_000 {
+            lines.extend(a..=b);
+        }
+    }
+    Some((count, lines))
+}
+
+/// Rounds numbers written with more than six decimals (floating-point noise such as
+/// "33.044000000000004" in messages from other stages) to at most six, trailing zeros dropped.
+/// Other text is unchanged.
+fn tidy_numbers(text: &str) -> String {
+    let mut out = String::with_capacity(text.len());
+    let chars: Vec<char> = text.chars().collect();
+    let mut i = 0;
+    while i < chars.len() {
+        let c = chars[i];
+        if c.is_ascii_digit() && (i == 0 || !chars[i - 1].is_ascii_alphanumeric()) {
+            let start = i;
+            while i < chars.len() && chars[i].is_ascii_digit() {
+                i += 1;
+            }
+            if i + 1 < chars.len() && chars[i] == '.' && chars[i + 1].is_ascii_digit() {
+                let dot = i;
+                i += 1;
+                while i < chars.len() && chars[i].is_ascii_digit() {
+                    i += 1;
+                }
+                let token: String = chars[start..i].iter().collect();
+                if i - dot - 1 > 6
+                    && let Ok(v) = token.parse::<f64>()
+                {
+                    let s = format!("{v:.6}");
+                    out.push_str(s.trim_end_matches('0').trim_end_matches('.'));
+                } else {
+                    out.push_str(&token);
+                }
+            } else {
+                out.extend(&chars[start..i]);
+            }
+            continue;
+        }
+        out.push(c);
+        i += 1;
+    }
+    out
 }
 
 /// "12, 40–52, 60" from sorted or unsorted line numbers; at most six runs, then "…".
@@ -293,10 +470,64 @@ fn line_ranges(lines: &[usize]) -> String {
     let shown: Vec<String> = runs
         .iter()
         .take(6)
-        .map(|&(a, b)| if a == b { format!("line {a}") } else { format!("lines {a}–{b}") })
+        .map(|&(a, b)| {
+            if a == b {
+                format!("line {a}")
+            } else {
+                format!("lines {a}–{b}")
+            }
+        })
         .collect();
-    let more = if runs.len() > 6 { format!(" and {} more runs", runs.len() - 6) } else { String::new() };
+    let more = if runs.len() > 6 {
+        format!(" and {} more runs", runs.len() - 6)
+    } else {
+        String::new()
+    };
     format!("{}{more}", shown.join(", "))
+}
+
+/// A relationship's name for readers, from its citation: "Chan & Connolly (2013)", or the first
+/// author and "et al." for three or more authors ("Silverman et al. (2009)"); the identifier
+/// when the citation does not start with "Authors (year)".
+fn relationship_name(id: &str, citation: &str) -> String {
+    let Some((authors, rest)) = citation.split_once(" (") else {
+        return id.to_string();
+    };
+    let year: String = rest.chars().take_while(char::is_ascii_digit).collect();
+    if year.len() != 4 || !rest[year.len()..].starts_with(')') || authors.trim().is_empty() {
+        return id.to_string();
+    }
+    let authors = if authors.contains(',') {
+        let first = authors.split(',').next().unwrap_or(authors).trim();
+        format!("{first} et al.")
+    } else {
+        authors.trim().to_string()
+    };
+    format!("{authors} ({year})")
+}
+
+/// "Ω_ar 1–5", or "Ω_ar ≥ 1" when the fitted range has no upper end.
+fn omega_range_text((lo, hi): (f64, f64)) -> String {
+    match (lo.is_finite(), hi.is_finite()) {
+        (true, true) => format!("Ω_ar {lo}–{hi}"),
+        (true, false) => format!("Ω_ar ≥ {lo}"),
+        (false, true) => format!("Ω_ar ≤ {hi}"),
+        (false, false) => "any Ω_ar".to_string(),
+    }
+}
+
+/// A relationship's formula as plain text from the outlook stage ("G = k x (Omega_ar - 1)")
+/// written with the report's symbols ("G = k × (Ω_ar − 1)").
+fn formula_text(text: &str) -> String {
+    text.replace("Omega_ar", "Ω_ar")
+        .replace("Omega_b", "Ω_b")
+        .replace("Omega", "Ω")
+        .replace(" x ", " × ")
+        .replace(" - ", " − ")
+        .replace("= -", "= −")
+        .replace("<=", "≤")
+        .replace(">=", "≥")
+        .replace("degC", "°C")
 }
 
 fn display_path(p: &Path) -> String {
@@ -345,10 +576,18 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
         }
     }
     let rows_per_season = |i: usize| -> usize {
-        loaded.records.iter().map(|r| r.rows_per_season.get(i).copied().unwrap_or(0)).sum()
+        loaded
+            .records
+            .iter()
+            .map(|r| r.rows_per_season.get(i).copied().unwrap_or(0))
+            .sum()
     };
     let coverage = Coverage {
-        record_files: loaded.records.iter().map(|r| display_path(&r.path)).collect(),
+        record_files: loaded
+            .records
+            .iter()
+            .map(|r| display_path(&r.path))
+            .collect(),
         n_records: loaded.records.iter().map(|r| r.rows).sum(),
         n_used: loaded.samples.iter().filter(|s| s.state.is_some()).count(),
         first_date: first.unwrap_or_default(),
@@ -430,7 +669,10 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
                             .map(|(year, q)| ProjectionPoint {
                                 year: *year,
                                 omega_ar: quantiles(q),
-                                ph_t: ph.iter().find(|(y, _)| y == year).map(|(_, q)| quantiles(q)),
+                                ph_t: ph
+                                    .iter()
+                                    .find(|(y, _)| y == year)
+                                    .map(|(_, q)| quantiles(q)),
                             })
                             .collect(),
                     })
@@ -439,8 +681,14 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
         })
         .collect();
 
-    let last_year = outlook.settings.horizon_years.last().copied().unwrap_or(2100);
-    let crossing_year = |y: Option<i32>| y.map_or(CrossingYear::NotBy(last_year), CrossingYear::Year);
+    let last_year = outlook
+        .settings
+        .horizon_years
+        .last()
+        .copied()
+        .unwrap_or(2100);
+    let crossing_year =
+        |y: Option<i32>| y.map_or(CrossingYear::NotBy(last_year), CrossingYear::Year);
     let crossings: Vec<Crossing> = outlook
         .crossings
         .iter()
@@ -455,8 +703,16 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
                 pathway: c.pathway.clone(),
                 season: c.season.clone(),
                 threshold: c.threshold,
-                median: if c.met_at_baseline { CrossingYear::AlreadyBelow } else { crossing_year(median) },
-                early: if c.met_at_baseline { CrossingYear::AlreadyBelow } else { crossing_year(early) },
+                median: if c.met_at_baseline {
+                    CrossingYear::AlreadyBelow
+                } else {
+                    crossing_year(median)
+                },
+                early: if c.met_at_baseline {
+                    CrossingYear::AlreadyBelow
+                } else {
+                    crossing_year(early)
+                },
                 late: crossing_year(late),
             }
         })
@@ -477,6 +733,9 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
 
     // Calcification outlook: relative change over all records, per relationship.
     let baseline_rate = outlook.calcification_baseline_kg_m2_yr;
+    // Absolute net calcification at the last year, per relationship (site-specific, so it goes
+    // to the site's method notes rather than into the relationship's description).
+    let mut absolute_notes: Vec<String> = Vec::new();
     let calcification: Vec<CalcificationOutlook> = outlook
         .relationships
         .iter()
@@ -505,34 +764,41 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
                         .collect(),
                 })
                 .collect();
+            let mut last_year = None;
             let at_last: Vec<String> = outlook
                 .pathways
                 .iter()
                 .filter_map(|p| {
                     let s = outlook.series(&p.name, BASE_SCENARIO, ANNUAL, &absolute);
                     let (y, q) = s.last()?;
-                    Some(format!("{} {:.2} in {y}", p.name, q[2]))
+                    last_year = Some(*y);
+                    Some(format!("{} {:.2}", p.name, q[2]))
                 })
                 .collect();
             let temp = rel
                 .temp_range_c
                 .map(|(a, b)| format!(", {a}–{b} °C"))
                 .unwrap_or_default();
+            let name = relationship_name(rel.id, rel.source);
+            if let Some(y) = last_year
+                && !at_last.is_empty()
+            {
+                absolute_notes.push(format!("{name}: {} in {y}", at_last.join(", ")));
+            }
             CalcificationOutlook {
-                relationship: rel.id.to_string(),
+                relationship: name,
                 citation: rel.source.to_string(),
                 unit: CalcUnit::PercentChange,
-                valid_range: format!("Ω_ar {}–{}{temp}", rel.omega_range.0, rel.omega_range.1),
+                valid_range: format!("{}{temp}", omega_range_text(rel.omega_range)),
                 baseline: None,
                 series,
                 note: Some(format!(
-                    "{} ({}). Absolute net calcification from the baseline rate {:.2} kg CaCO₃ m⁻² yr⁻¹ ({}), median: {}. Source status: {}.",
-                    rel.form_text,
-                    rel.scope,
-                    baseline_rate,
-                    outlook.calcification_baseline_source,
-                    at_last.join("; "),
-                    rel.status
+                    "{} ({}). Source status: {}. Identifier in site files and in the tables \
+                     of calcisite project: {}.",
+                    formula_text(rel.form_text),
+                    formula_text(rel.scope),
+                    rel.status,
+                    rel.id,
                 )),
             }
         })
@@ -560,7 +826,10 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
                             year: y,
                             season: season.clone(),
                             omega_ar: quantiles(q),
-                            reference_median: base.iter().find(|(yy, _)| *yy == y).map(|(_, q)| q[2]),
+                            reference_median: base
+                                .iter()
+                                .find(|(yy, _)| *yy == y)
+                                .map(|(_, q)| q[2]),
                         });
                     }
                 }
@@ -568,7 +837,9 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
             let offsets: Vec<String> = s
                 .offsets
                 .iter()
-                .map(|(season, ta, dic)| format!("{season}: TA {ta:+} µmol/kg, DIC {dic:+} µmol/kg"))
+                .map(|(season, ta, dic)| {
+                    format!("{season}: TA {ta:+} µmol/kg, DIC {dic:+} µmol/kg")
+                })
                 .collect();
             LocalScenario {
                 name: s.name.clone(),
@@ -593,27 +864,46 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
     let mut notes: Vec<String> = Vec::new();
     if let Some(fit) = &loaded.baseline.ta_salinity {
         notes.push(format!(
-            "TA–salinity relationship of the bottle samples: TA = {:.1} + {:.2}·S µmol/kg (n = {}, r² = {:.2}, salinity {:.2}–{:.2}); used for rows without measured TA.",
-            fit.intercept_umol_kg, fit.slope, fit.n, fit.r2, fit.salinity_min, fit.salinity_max
+            "TA–salinity relationship of the bottle samples: TA = {} {} {}·S µmol/kg (n = {}, r² = {:.2}, salinity {:.2}–{:.2}); used for rows without measured TA.",
+            super::fmt::number(fit.intercept_umol_kg, 1),
+            if fit.slope < 0.0 { "−" } else { "+" },
+            super::fmt::number(fit.slope.abs(), 2),
+            fit.n, fit.r2, fit.salinity_min, fit.salinity_max
         ));
     }
     notes.push(
         "Depths in metres are taken as that many decibars of hydrostatic pressure.".to_string(),
     );
-    notes.extend(outlook.notes.iter().cloned());
+    if !absolute_notes.is_empty() {
+        notes.push(format!(
+            "Net calcification at the baseline rate of {baseline_rate:.2} kg CaCO₃ m⁻² yr⁻¹ \
+             (see Projection settings), ensemble median in kg CaCO₃ m⁻² yr⁻¹: {}.",
+            absolute_notes.join("; ")
+        ));
+    }
+    notes.extend(outlook.notes.iter().map(|n| tidy_numbers(n)));
     let methods = Methods {
         chemistry,
         projection: vec![
             setting("Observed CO2", st.observed_co2_source.clone()),
             setting("Disequilibrium", st.disequilibrium.clone()),
             setting("Warming", if st.warming { "on" } else { "off" }.to_string()),
-            setting("Ensemble", format!("{} members, seed {}", st.members, st.seed)),
+            setting(
+                "Ensemble",
+                format!("{} members, seed {}", st.members, st.seed),
+            ),
             setting("Constant uncertainties", st.constants_uncertainty.clone()),
-            setting("Measurement uncertainties", st.measurement_uncertainty.clone()),
+            setting(
+                "Measurement uncertainties",
+                st.measurement_uncertainty.clone(),
+            ),
             setting("Record variability", st.record_variability.clone()),
             setting(
                 "Baseline calcification",
-                format!("{:.2} kg CaCO₃ m⁻² yr⁻¹ ({})", baseline_rate, outlook.calcification_baseline_source),
+                format!(
+                    "{:.2} kg CaCO₃ m⁻² yr⁻¹ ({})",
+                    baseline_rate, outlook.calcification_baseline_source
+                ),
             ),
         ],
         notes,
@@ -626,18 +916,20 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
             .map(|s| {
                 let st = s.state.as_ref();
                 let mut measured = Vec::new();
+                // Names as documented on `SampleRow::measured`.
                 for (name, v) in [
-                    ("TA", s.measured.ta()),
-                    ("DIC", s.measured.dic()),
-                    ("pH", s.measured.ph_t()),
-                    ("pCO2", s.measured.pco2()),
-                    ("fCO2", s.measured.fco2()),
+                    ("ta", s.measured.ta()),
+                    ("dic", s.measured.dic()),
+                    ("ph_t", s.measured.ph_t()),
+                    ("pco2", s.measured.pco2()),
+                    ("fco2", s.measured.fco2()),
                 ] {
                     if v.is_some() {
                         measured.push(name.to_string());
                     }
                 }
-                let mut flags: Vec<String> = s.flags.labels().iter().map(|l| l.to_string()).collect();
+                let mut flags: Vec<String> =
+                    s.flags.labels().iter().map(|l| l.to_string()).collect();
                 if s.ta_estimated {
                     flags.push("TA from TA–S fit".to_string());
                 }
@@ -650,7 +942,11 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
                     row: s.line as u64,
                     date: s.time.format("%Y-%m-%d %H:%M").to_string(),
                     station: s.station.to_string(),
-                    season: loaded.seasons.get(s.season).map(|x| x.name.clone()).unwrap_or_default(),
+                    season: loaded
+                        .seasons
+                        .get(s.season)
+                        .map(|x| x.name.clone())
+                        .unwrap_or_default(),
                     temp_c: s.temp_c,
                     salinity: s.salinity,
                     pressure_dbar: s.pressure_dbar,
@@ -714,10 +1010,65 @@ mod tests {
     }
 
     #[test]
+    fn relationship_names_come_from_the_citation() {
+        assert_eq!(
+            relationship_name(
+                "chan2013",
+                "Chan & Connolly (2013), Global Change Biology 19:282"
+            ),
+            "Chan & Connolly (2013)"
+        );
+        assert_eq!(
+            relationship_name(
+                "s2009",
+                "Silverman, Lazar, Cao, Caldeira & Erez (2009), GRL 36"
+            ),
+            "Silverman et al. (2009)"
+        );
+        assert_eq!(relationship_name("x", "no year here"), "x");
+        assert_eq!(relationship_name("x", "Someone (in press)"), "x");
+        assert_eq!(omega_range_text((1.0, f64::INFINITY)), "Ω_ar ≥ 1");
+        assert_eq!(omega_range_text((1.0, 5.0)), "Ω_ar 1–5");
+        assert_eq!(
+            formula_text("G = k x (Omega_ar - 1); G = 0 for Omega_ar <= 1, 5-37 degC"),
+            "G = k × (Ω_ar − 1); G = 0 for Ω_ar ≤ 1, 5-37 °C"
+        );
+    }
+
+    #[test]
+    fn floating_point_noise_is_rounded_away() {
+        assert_eq!(
+            tidy_numbers("temp_c 33.044000000000004 °C is outside 9–33 °C (station LG1, 2.5 m)"),
+            "temp_c 33.044 °C is outside 9–33 °C (station LG1, 2.5 m)"
+        );
+        assert_eq!(
+            tidy_numbers("x 1.123456789 and v2.0000001"),
+            "x 1.123457 and v2.0000001"
+        );
+        assert_eq!(tidy_numbers("lines 3–5, 9."), "lines 3–5, 9.");
+    }
+
+    #[test]
+    fn summaries_of_further_rows_are_parsed() {
+        let (n, lines) = parse_more_rows(
+            "275 more rows like the one above (ta-fit-range) on lines 778–780, 856",
+        )
+        .unwrap();
+        assert_eq!(n, 275);
+        assert_eq!(lines, vec![778, 779, 780, 856]);
+        let (n, _) = parse_more_rows("1 more row like the one above (x) on lines 5").unwrap();
+        assert_eq!(n, 1);
+        assert!(parse_more_rows("salinity 34.62 is outside the range").is_none());
+    }
+
+    #[test]
     fn table_horizons() {
         let every5: Vec<i32> = (2025..=2100).step_by(5).collect();
         assert_eq!(horizons(&every5), vec![2030, 2040, 2050, 2075, 2100]);
         assert_eq!(horizons(&[2027, 2033]), vec![2027, 2033]);
-        assert_eq!(horizons(&[2031, 2041, 2051, 2061, 2071, 2081, 2091]), vec![2031, 2041, 2061, 2071, 2091]);
+        assert_eq!(
+            horizons(&[2031, 2041, 2051, 2061, 2071, 2081, 2091]),
+            vec![2031, 2041, 2061, 2071, 2091]
+        );
     }
 }

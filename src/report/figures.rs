@@ -26,6 +26,8 @@ pub const FONT: &str = "DejaVu Sans";
 pub const FULL_WIDTH_PX: u32 = 480;
 /// Width of a half-width figure, px (placed in one column of a two-column grid).
 pub const HALF_WIDTH_PX: u32 = 236;
+/// Width of a third-width figure, px (placed in one column of a three-column grid).
+pub const THIRD_WIDTH_PX: u32 = 154;
 /// Text width of the page, pt (170 mm).
 pub const TEXT_WIDTH_PT: f64 = 170.0 / 25.4 * 72.0;
 /// Gap between the two columns of a figure grid, pt (the template uses the same).
@@ -41,6 +43,8 @@ const TITLE: f64 = 13.6;
 pub enum Placement {
     Full,
     Half,
+    /// One column of a three-column grid (the calcification panels).
+    Third,
 }
 
 impl Placement {
@@ -49,6 +53,7 @@ impl Placement {
         match self {
             Placement::Full => TEXT_WIDTH_PT,
             Placement::Half => (TEXT_WIDTH_PT - GRID_GUTTER_PT) / 2.0,
+            Placement::Third => (TEXT_WIDTH_PT - 2.0 * GRID_GUTTER_PT) / 3.0,
         }
     }
 
@@ -56,6 +61,7 @@ impl Placement {
         match self {
             Placement::Full => FULL_WIDTH_PX,
             Placement::Half => HALF_WIDTH_PX,
+            Placement::Third => THIRD_WIDTH_PX,
         }
     }
 }
@@ -121,6 +127,8 @@ pub struct SiteFigures {
     pub fans: Vec<(String, Figure)>,
     /// One chart per calcification relationship, in model order.
     pub calcification: Vec<Figure>,
+    /// The pathway legend shared by the calcification charts.
+    pub calcification_legend: Option<Figure>,
 }
 
 /// All figures of a report.
@@ -130,6 +138,9 @@ pub struct ReportFigures {
     /// Side-by-side charts of several sites (comparison reports only; one per
     /// [`SITES_PER_COMPARISON_CHART`] sites).
     pub comparison: Vec<Figure>,
+    /// The comparison's key figure for the first page: every site at the last horizon year
+    /// only (comparison reports only).
+    pub comparison_key: Option<Figure>,
 }
 
 impl ReportFigures {
@@ -141,8 +152,10 @@ impl ReportFigures {
             out.extend(s.overview.iter());
             out.extend(s.fans.iter().map(|(_, f)| f));
             out.extend(s.calcification.iter());
+            out.extend(s.calcification_legend.iter());
         }
         out.extend(self.comparison.iter());
+        out.extend(self.comparison_key.iter());
         out
     }
 }
@@ -167,10 +180,14 @@ pub fn build_all(model: &ReportModel) -> FigResult<ReportFigures> {
                 sf.calcification.push(f);
             }
         }
+        if !sf.calcification.is_empty() {
+            sf.calcification_legend = calcification_legend(model, site, &prefix)?;
+        }
         figs.sites.push(sf);
     }
     if model.sites.len() > 1 {
         figs.comparison = comparison_charts(model)?;
+        figs.comparison_key = comparison_key_chart(model)?;
     }
     Ok(figs)
 }
@@ -257,6 +274,66 @@ fn year_ticks(lo: f64, hi: f64) -> usize {
         5.0
     };
     ((span / step).floor() as usize + 1).max(2)
+}
+
+/// Tick values for `lo..=hi`: multiples of the smallest 1-2-5 step that gives at most
+/// `max_ticks` ticks (at least two when the range allows), and the decimals that step needs.
+fn nice_ticks(lo: f64, hi: f64, max_ticks: usize) -> (Vec<f64>, usize) {
+    if !(lo.is_finite() && hi.is_finite() && hi > lo) || max_ticks < 2 {
+        return (Vec::new(), 0);
+    }
+    let span = hi - lo;
+    let mut exp = (span / max_ticks as f64).log10().floor() as i32 - 1;
+    loop {
+        for m in [1.0, 2.0, 5.0] {
+            let step = m * 10f64.powi(exp);
+            let first = (lo / step - 1e-9).ceil();
+            let last = (hi / step + 1e-9).floor();
+            let count = (last - first) as i64 + 1;
+            if count >= 1 && count as usize <= max_ticks {
+                let decimals = (-exp).max(0) as usize;
+                let f = 10f64.powi(decimals as i32);
+                let ticks = (0..count)
+                    .map(|i| (((first + i as f64) * step) * f).round() / f)
+                    .collect();
+                return (ticks, decimals);
+            }
+        }
+        exp += 1;
+        if exp > 308 {
+            return (Vec::new(), 0);
+        }
+    }
+}
+
+/// A label broken into at most two lines of about `max_chars` characters at spaces; the second
+/// line is shortened with an ellipsis when the label is longer still.
+fn wrap_two_lines(label: &str, max_chars: usize) -> Vec<String> {
+    let max_chars = max_chars.max(4);
+    if label.chars().count() <= max_chars {
+        return vec![label.to_string()];
+    }
+    let mut first = String::new();
+    let mut words = label.split(' ').peekable();
+    while let Some(w) = words.peek() {
+        let len = first.chars().count() + usize::from(!first.is_empty()) + w.chars().count();
+        if len > max_chars && !first.is_empty() {
+            break;
+        }
+        if !first.is_empty() {
+            first.push(' ');
+        }
+        first.push_str(w);
+        words.next();
+    }
+    let rest: Vec<&str> = words.collect();
+    if rest.is_empty() {
+        return vec![shorten(&first, max_chars)];
+    }
+    vec![
+        shorten(&first, max_chars),
+        shorten(&rest.join(" "), max_chars),
+    ]
 }
 
 /// Outline points of a marker centred on a backend pixel (`None` for the circle).
@@ -563,7 +640,8 @@ pub fn seasonal_cycle(site: &SiteReport, prefix: &str) -> FigResult<Option<Figur
     if seasons.is_empty() {
         return Ok(None);
     }
-    let (w, h) = (FULL_WIDTH_PX, 380u32);
+    // Each panel must be tall enough for its rotated axis title ("Temperature (°C)").
+    let (w, h) = (FULL_WIDTH_PX, 360u32);
     let mut svg = String::new();
     {
         let root = SVGBackend::with_string(&mut svg, (w, h)).into_drawing_area();
@@ -592,6 +670,10 @@ pub fn seasonal_cycle(site: &SiteReport, prefix: &str) -> FigResult<Option<Figur
             let lo = lo.fold(f64::INFINITY, f64::min);
             let hi = hi.fold(f64::NEG_INFINITY, f64::max);
             let (y0, y1) = nice_range(lo, hi, step);
+            // Ticks chosen here (three or four per panel) rather than by plotters, whose choice
+            // can leave a narrow panel with a single label.
+            let (ticks, tick_decimals) = nice_ticks(y0, y1, 4);
+            let dec = dec.max(tick_decimals);
             let last = i == 2;
             let mut chart = ChartBuilder::on(panel)
                 .margin_top(6)
@@ -601,21 +683,37 @@ pub fn seasonal_cycle(site: &SiteReport, prefix: &str) -> FigResult<Option<Figur
                 .y_label_area_size(62)
                 .build_cartesian_2d(-0.5f64..(n as f64 - 0.5), y0..y1)
                 .map_err(err)?;
-            let y_fmt = move |v: &f64| fmt::number(*v, dec);
             chart
                 .configure_mesh()
                 .disable_x_mesh()
+                .disable_y_mesh()
                 .x_labels(0)
-                .light_line_style(TRANSPARENT)
-                .bold_line_style(palette::GRID.stroke_width(1))
+                .y_labels(0)
                 .axis_style(palette::INK.stroke_width(1))
-                .label_style(text_style(TICK, palette::INK))
                 .axis_desc_style(text_style(LABEL, palette::INK))
-                .y_labels(4)
-                .y_label_formatter(&y_fmt)
                 .y_desc(desc)
                 .draw()
                 .map_err(err)?;
+            // Grid lines, tick marks and labels at our own ticks.
+            let x_lo = -0.5f64;
+            let x_hi = n as f64 - 0.5;
+            for t in &ticks {
+                let a = chart.backend_coord(&(x_lo, *t));
+                let b = chart.backend_coord(&(x_hi, *t));
+                root.draw(&PathElement::new(vec![a, b], palette::GRID.stroke_width(1)))
+                    .map_err(err)?;
+                root.draw(&PathElement::new(
+                    vec![(a.0 - 4, a.1), a],
+                    palette::INK.stroke_width(1),
+                ))
+                .map_err(err)?;
+                root.draw(&Text::new(
+                    fmt::number(*t, dec),
+                    (a.0 - 7, a.1),
+                    anchored(TICK, palette::INK, HPos::Right, VPos::Center),
+                ))
+                .map_err(err)?;
+            }
             for (k, s) in stats.iter().enumerate() {
                 let x = k as f64;
                 if s.min.is_finite() && s.max.is_finite() {
@@ -989,7 +1087,9 @@ pub fn outlook_overview(
 // (c) Calcification outlook
 
 /// Calcification outlook of one relationship: median per pathway with a 25–75 % band; open
-/// markers where the relationship is used outside its fitted range.
+/// markers where the relationship is used outside its fitted range. A third-width panel (placed
+/// three per row, one per relationship) titled with the relationship's name; the legend is
+/// [`calcification_legend`], shared by the panels.
 pub fn calcification_chart(
     model: &ReportModel,
     c: &CalcificationOutlook,
@@ -1034,33 +1134,31 @@ pub fn calcification_chart(
             .iter()
             .flat_map(|(_, _, p)| p.iter().map(|pt| pt.year)),
     );
-    let any_extrapolated = series
-        .iter()
-        .any(|(_, _, p)| p.iter().any(|pt| pt.extrapolated));
     let y_desc = match c.unit {
-        CalcUnit::PercentChange => "Change in calcification (%)",
-        CalcUnit::KgCaco3PerM2Year => "Net calcification (kg CaCO₃ m⁻² yr⁻¹)",
+        CalcUnit::PercentChange => "Change (%)",
+        CalcUnit::KgCaco3PerM2Year => "kg CaCO₃ m⁻² yr⁻¹",
     };
-    let names: Vec<&str> = series.iter().map(|(_, p, _)| p.label.as_str()).collect();
-    let legend_h = legend_height(&names, FULL_WIDTH_PX as i32 - 64);
-    let (w, h) = (
-        FULL_WIDTH_PX,
-        230 + legend_h as u32 + if any_extrapolated { 14 } else { 0 },
-    );
+    let w = THIRD_WIDTH_PX;
+    let title_h = 20;
+    let h = 150 + title_h as u32;
     let mut svg = String::new();
     {
         let root = SVGBackend::with_string(&mut svg, (w, h)).into_drawing_area();
         root.fill(&WHITE).map_err(err)?;
-        let labels: Vec<&PathwayInfo> = series.iter().map(|(_, p, _)| *p).collect();
-        let idx: Vec<usize> = series.iter().map(|(k, _, _)| *k).collect();
-        draw_pathway_legend(&root, &labels, count, &idx, (58, 2), w as i32 - 64)?;
-        let (_, body) = root.split_vertically(legend_h + 2);
+        // About 25 characters fit at the title size; longer names are shortened (the table
+        // and the caption carry them in full).
+        root.draw(&Text::new(
+            shorten(&c.relationship, 25),
+            (4, 4),
+            anchored(LABEL, palette::INK, HPos::Left, VPos::Top),
+        ))
+        .map_err(err)?;
+        let (_, body) = root.split_vertically(title_h);
         let mut chart = ChartBuilder::on(&body)
             .margin_top(4)
-            .margin_right(14)
-            .margin_bottom(if any_extrapolated { 16 } else { 0 })
+            .margin_right(10)
             .x_label_area_size(34)
-            .y_label_area_size(56)
+            .y_label_area_size(44)
             .build_cartesian_2d(x0..x1, y0..y1)
             .map_err(err)?;
         let dec = if step >= 1.0 { 0 } else { 1 };
@@ -1068,7 +1166,7 @@ pub fn calcification_chart(
             &mut chart,
             "Year",
             y_desc,
-            year_ticks(x0, x1),
+            year_ticks(x0, x1).min(3),
             &|v: &f64| fmt::number(*v, dec),
             6,
         )?;
@@ -1111,14 +1209,6 @@ pub fn calcification_chart(
                 }
             }
         }
-        if any_extrapolated {
-            root.draw(&Text::new(
-                "Open markers: outside the relationship's fitted range (extrapolated).",
-                (58, h as i32 - 4),
-                anchored(TICK, palette::MUTED, HPos::Left, VPos::Bottom),
-            ))
-            .map_err(err)?;
-        }
         root.present().map_err(err)?;
     }
     let alt = format!(
@@ -1129,6 +1219,79 @@ pub fn calcification_chart(
     Ok(Some(finish(
         svg,
         format!("{name}.svg"),
+        alt,
+        Placement::Third,
+        h,
+    )))
+}
+
+/// The legend of a site's calcification panels: one sample per pathway and, when any point is
+/// extrapolated, the open marker that flags it.
+pub fn calcification_legend(
+    model: &ReportModel,
+    site: &SiteReport,
+    prefix: &str,
+) -> FigResult<Option<Figure>> {
+    let count = model.pathways.len();
+    let shown: Vec<(usize, &PathwayInfo)> = model
+        .pathways
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| {
+            site.calcification.iter().any(|c| {
+                c.series
+                    .iter()
+                    .any(|s| s.pathway == p.id && !s.points.is_empty())
+            })
+        })
+        .collect();
+    if shown.is_empty() {
+        return Ok(None);
+    }
+    let any_extrapolated = site
+        .calcification
+        .iter()
+        .flat_map(|c| c.series.iter())
+        .any(|s| s.points.iter().any(|p| p.extrapolated));
+    const OPEN: &str = "open marker: outside fitted range (extrapolated)";
+    let names: Vec<&str> = shown.iter().map(|(_, p)| p.label.as_str()).collect();
+    let mut all: Vec<&str> = names.clone();
+    if any_extrapolated {
+        all.push(OPEN);
+    }
+    let w = FULL_WIDTH_PX;
+    let h = legend_height(&all, w as i32 - 8) as u32 + 2;
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (w, h)).into_drawing_area();
+        root.fill(&WHITE).map_err(err)?;
+        let labels: Vec<&PathwayInfo> = shown.iter().map(|(_, p)| *p).collect();
+        let idx: Vec<usize> = shown.iter().map(|(k, _)| *k).collect();
+        draw_pathway_legend(&root, &labels, count, &idx, (4, 1), w as i32 - 8)?;
+        if any_extrapolated && let Some(&(x, y)) = legend_layout(&all, (4, 1), w as i32 - 8).last()
+        {
+            draw_marker(&root, (x + 10, y), Marker::Circle, palette::MUTED, false)?;
+            root.draw(&Text::new(
+                OPEN,
+                (x + 24, y),
+                anchored(TICK, palette::INK, HPos::Left, VPos::Center),
+            ))
+            .map_err(err)?;
+        }
+        root.present().map_err(err)?;
+    }
+    let alt = format!(
+        "Legend of the calcification panels: {}{}.",
+        names.join(", "),
+        if any_extrapolated {
+            "; open markers are extrapolated"
+        } else {
+            ""
+        }
+    );
+    Ok(Some(finish(
+        svg,
+        format!("{prefix}-calc-legend.svg"),
         alt,
         Placement::Full,
         h,
@@ -1141,17 +1304,18 @@ pub fn calcification_chart(
 /// Most sites in one comparison chart; more sites are split over several charts.
 pub const SITES_PER_COMPARISON_CHART: usize = 6;
 
-/// Dot-and-whisker charts of several sites, in ranking order, at most
-/// [`SITES_PER_COMPARISON_CHART`] sites each, all on the same Ω_ar scale.
-pub fn comparison_charts(model: &ReportModel) -> FigResult<Vec<Figure>> {
+/// Sites in ranking order with their rank (1 = first) and the common Ω_ar range of every
+/// horizon year (so that all comparison charts share one scale).
+fn ranked_sites(model: &ReportModel) -> (Vec<(usize, &SiteReport)>, (f64, f64)) {
     let order = super::view::rank_sites(model);
-    let sites: Vec<&SiteReport> = order
+    let sites: Vec<(usize, &SiteReport)> = order
         .iter()
-        .filter_map(|e| model.sites.get(e.site))
+        .enumerate()
+        .filter_map(|(rank, e)| model.sites.get(e.site).map(|s| (rank + 1, s)))
         .collect();
     let mut lo = f64::INFINITY;
     let mut hi = f64::NEG_INFINITY;
-    for site in &sites {
+    for (_, site) in &sites {
         let season = site.limiting_season().unwrap_or_default();
         for p in &model.pathways {
             for &year in &model.horizons {
@@ -1164,8 +1328,15 @@ pub fn comparison_charts(model: &ReportModel) -> FigResult<Vec<Figure>> {
             }
         }
     }
-    let range = omega_range(lo, hi, &model.thresholds);
-    let chunks: Vec<&[&SiteReport]> = sites.chunks(SITES_PER_COMPARISON_CHART).collect();
+    (sites, omega_range(lo, hi, &model.thresholds))
+}
+
+/// Dot-and-whisker charts of several sites, in ranking order, at most
+/// [`SITES_PER_COMPARISON_CHART`] sites each, one panel per horizon year, all on the same Ω_ar
+/// scale.
+pub fn comparison_charts(model: &ReportModel) -> FigResult<Vec<Figure>> {
+    let (sites, range) = ranked_sites(model);
+    let chunks: Vec<&[(usize, &SiteReport)]> = sites.chunks(SITES_PER_COMPARISON_CHART).collect();
     let mut out = Vec::new();
     for (i, chunk) in chunks.iter().enumerate() {
         let name = if chunks.len() == 1 {
@@ -1173,22 +1344,42 @@ pub fn comparison_charts(model: &ReportModel) -> FigResult<Vec<Figure>> {
         } else {
             format!("comparison-{}.svg", i + 1)
         };
-        if let Some(f) = comparison_chart(model, chunk, range, name)? {
+        if let Some(f) = comparison_chart(model, chunk, range, &model.horizons, 96, name)? {
             out.push(f);
         }
     }
     Ok(out)
 }
 
-/// Dot-and-whisker chart of several sites: median Ω_ar in each site's limiting season at every
-/// horizon year (one panel each), per pathway, with 25–75 % (thick) and 5–95 % (thin) whiskers.
+/// The comparison's key figure: every site (up to [`SITES_PER_COMPARISON_CHART`], the best
+/// ranked) at the last horizon year, one taller panel.
+pub fn comparison_key_chart(model: &ReportModel) -> FigResult<Option<Figure>> {
+    let Some(&last) = model.horizons.last() else {
+        return Ok(None);
+    };
+    let (sites, range) = ranked_sites(model);
+    let shown = &sites[..sites.len().min(SITES_PER_COMPARISON_CHART)];
+    comparison_chart(
+        model,
+        shown,
+        range,
+        &[last],
+        100,
+        "comparison-key.svg".to_string(),
+    )
+}
+
+/// Dot-and-whisker chart of several sites: median Ω_ar in each site's limiting season at the
+/// given years (one panel each), per pathway, with 25–75 % (thick) and 5–95 % (thin) whiskers.
+/// Sites are labelled with their rank and name (wrapped over two lines).
 fn comparison_chart(
     model: &ReportModel,
-    sites: &[&SiteReport],
+    sites: &[(usize, &SiteReport)],
     (y0, y1): (f64, f64),
+    horizons: &[i32],
+    panel_h: i32,
     name: String,
 ) -> FigResult<Option<Figure>> {
-    let horizons = &model.horizons;
     if sites.is_empty() || horizons.is_empty() || model.pathways.is_empty() {
         return Ok(None);
     }
@@ -1199,7 +1390,7 @@ fn comparison_chart(
         .map(|&year| {
             sites
                 .iter()
-                .map(|site| {
+                .map(|(_, site)| {
                     let season = site.limiting_season().unwrap_or_default();
                     model
                         .pathways
@@ -1217,14 +1408,23 @@ fn comparison_chart(
         return Ok(None);
     }
     let n_sites = sites.len();
-    let panel_h = 120i32;
-    let site_label_h = 30i32;
+    // Site labels: "rank. name" over at most two lines.
+    let max_chars = ((f64::from(FULL_WIDTH_PX - 110) / n_sites as f64) / 6.4) as usize;
+    let site_labels: Vec<Vec<String>> = sites
+        .iter()
+        .map(|(rank, s)| wrap_two_lines(&format!("{rank}. {}", s.name), max_chars))
+        .collect();
+    let label_lines = site_labels.iter().map(Vec::len).max().unwrap_or(1) as i32;
+    let site_label_h = 10 + 14 * label_lines;
     let names: Vec<&str> = model.pathways.iter().map(|p| p.label.as_str()).collect();
     let legend_h = legend_height(&names, FULL_WIDTH_PX as i32 - 60);
+    // Gap between panels so that the top tick of one panel clears the bottom tick of the
+    // one above.
+    let gap = 10i32;
     // Horizon years come from the site description: keep the arithmetic overflow-free.
     let n_h = i32::try_from(horizons.len()).unwrap_or(i32::MAX);
     let h = (legend_h + 2)
-        .saturating_add(panel_h.saturating_mul(n_h))
+        .saturating_add(panel_h.saturating_add(gap).saturating_mul(n_h))
         .saturating_add(site_label_h);
     let (w, h) = (FULL_WIDTH_PX, u32::try_from(h).unwrap_or(u32::MAX));
     let mut svg = String::new();
@@ -1240,7 +1440,7 @@ fn comparison_chart(
             if i + 1 == n_h {
                 panels.push(rest.clone());
             } else {
-                let (top, bottom) = rest.split_vertically(panel_h);
+                let (top, bottom) = rest.split_vertically(panel_h + gap);
                 panels.push(top);
                 rest = bottom;
             }
@@ -1249,9 +1449,9 @@ fn comparison_chart(
         for (hi_idx, panel) in panels.iter().enumerate() {
             let last = hi_idx + 1 == horizons.len();
             let mut chart = ChartBuilder::on(panel)
-                .margin_top(4)
-                .margin_bottom(4)
-                .x_label_area_size(if last { 30 } else { 2 })
+                .margin_top(gap / 2 + 2)
+                .margin_bottom(gap / 2)
+                .x_label_area_size(if last { site_label_h - gap / 2 } else { 2 })
                 .y_label_area_size(46)
                 .margin_right(right_margin(&model.thresholds, false))
                 .build_cartesian_2d(-0.5f64..(n_sites as f64 - 0.5), y0..y1)
@@ -1295,25 +1495,25 @@ fn comparison_chart(
                 }
             }
             if last {
-                for (s, site) in sites.iter().enumerate() {
+                for (s, lines) in site_labels.iter().enumerate() {
                     let (px, py) = chart.backend_coord(&(s as f64, y0));
-                    let max_chars =
-                        (f64::from(FULL_WIDTH_PX - 120) / n_sites as f64 / 6.5) as usize;
-                    root.draw(&Text::new(
-                        shorten(&site.name, max_chars.max(6)),
-                        (px, py + 6),
-                        anchored(LABEL, palette::INK, HPos::Center, VPos::Top),
-                    ))
-                    .map_err(err)?;
+                    for (li, line) in lines.iter().enumerate() {
+                        root.draw(&Text::new(
+                            line.clone(),
+                            (px, py + 6 + 14 * li as i32),
+                            anchored(LABEL, palette::INK, HPos::Center, VPos::Top),
+                        ))
+                        .map_err(err)?;
+                    }
                 }
             }
         }
         root.present().map_err(err)?;
     }
-    let names: Vec<&str> = sites.iter().map(|s| s.name.as_str()).collect();
+    let names: Vec<&str> = sites.iter().map(|(_, s)| s.name.as_str()).collect();
     let alt = format!(
         "Side-by-side comparison of projected aragonite saturation (median, 25–75 % and 5–95 %) \
-         in each site's limiting season at {} for the sites {}.",
+         in each site's limiting season at {} for the sites {} (in ranking order).",
         horizons
             .iter()
             .map(|y| y.to_string())
@@ -1400,12 +1600,18 @@ pub(crate) mod tests {
         assert!(overview.contains(&model.thresholds.labels[0]));
         assert_eq!(s.fans.len(), model.pathways.len());
         let calc = &s.calcification[0].svg;
-        assert!(calc.contains("Change in calcification (%)") || calc.contains("kg CaCO₃"));
+        assert!(calc.contains("Change (%)") || calc.contains("kg CaCO₃"));
         assert_eq!(figs.comparison.len(), 1);
         let cmp = &figs.comparison[0].svg;
         for site in &model.sites {
-            assert!(cmp.contains(&site.name));
+            // Names may be wrapped over two lines: every word is there.
+            for word in site.name.split(' ') {
+                assert!(cmp.contains(word), "{word} of {} missing", site.name);
+            }
         }
+        let key = &figs.comparison_key.as_ref().expect("key figure").svg;
+        let last = model.horizons.last().unwrap();
+        assert!(key.contains(&format!("in {last}")));
         for y in &model.horizons {
             assert!(cmp.contains(&format!("in {y}")));
         }
@@ -1425,7 +1631,8 @@ pub(crate) mod tests {
                     .any(|s| s.points.iter().any(|p| p.extrapolated))
             })
             .expect("example has an extrapolated relationship");
-        assert!(extrapolated.1.svg.contains("outside the relationship"));
+        let legend = figs.sites[0].calcification_legend.as_ref().expect("legend");
+        assert!(legend.svg.contains("outside fitted range"));
     }
 
     #[test]
@@ -1444,6 +1651,32 @@ pub(crate) mod tests {
         assert!(figs.sites[0].seasonal.is_none());
         assert!(figs.sites[0].overview.is_none());
         assert!(figs.sites[0].fans.is_empty());
+    }
+
+    #[test]
+    fn nice_ticks_use_one_two_five_steps_within_the_range() {
+        let (t, d) = nice_ticks(3.5, 3.9, 4);
+        assert_eq!(t, vec![3.6, 3.8]);
+        assert_eq!(d, 1);
+        let (t, d) = nice_ticks(8.02, 8.08, 4);
+        assert_eq!(t, vec![8.02, 8.04, 8.06, 8.08]);
+        assert_eq!(d, 2);
+        let (t, _) = nice_ticks(26.0, 29.5, 4);
+        assert_eq!(t, vec![26.0, 27.0, 28.0, 29.0]);
+        assert!(nice_ticks(f64::NAN, 1.0, 4).0.is_empty());
+        assert!(nice_ticks(1.0, 1.0, 4).0.is_empty());
+    }
+
+    #[test]
+    fn long_site_names_wrap_over_two_lines() {
+        assert_eq!(wrap_two_lines("1. Short", 20), vec!["1. Short"]);
+        assert_eq!(
+            wrap_two_lines("1. Tala Vesi back-reef lagoon", 20),
+            vec!["1. Tala Vesi", "back-reef lagoon"]
+        );
+        let w = wrap_two_lines("Averyveryverylongsinglewordname and more words here", 10);
+        assert_eq!(w.len(), 2);
+        assert!(w.iter().all(|l| l.chars().count() <= 10), "{w:?}");
     }
 
     #[test]

@@ -8,7 +8,7 @@ use super::figures::{Figure, ReportFigures, SiteFigures, class_range_text};
 use super::fmt;
 use super::model::{
     CalcUnit, CalcificationOutlook, CrossingYear, QcLevel, Quantiles, ReportModel, ReportTime,
-    SiteReport, Stat,
+    SampleRow, SiteReport, Stat,
 };
 use super::palette;
 
@@ -251,6 +251,136 @@ fn calc_view(model: &ReportModel, c: &CalcificationOutlook, figure: Option<&Figu
     })
 }
 
+/// Short names of the measured parameters of a sample ("TA DIC", "pH pCO2").
+fn measured_text(s: &SampleRow) -> String {
+    s.measured
+        .iter()
+        .map(|m| match m.as_str() {
+            "ta" => "TA",
+            "dic" => "DIC",
+            "ph_t" => "pH",
+            "pco2" => "pCO2",
+            "fco2" => "fCO2",
+            other => other,
+        })
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+/// The cells of one appendix row, formatted, in column order (see [`APPENDIX_COLUMNS`]).
+fn sample_cells(s: &SampleRow) -> [String; 15] {
+    let flags = s.flags.join("; ");
+    let flags = if s.used {
+        flags
+    } else if flags.is_empty() {
+        "NOT USED".to_string()
+    } else {
+        format!("NOT USED: {flags}")
+    };
+    [
+        s.row.to_string(),
+        s.date.clone(),
+        s.station.clone(),
+        s.season.clone(),
+        fmt::temp(s.temp_c),
+        fmt::salinity(s.salinity),
+        fmt::pressure(s.pressure_dbar),
+        fmt::opt(s.ta, 0),
+        fmt::opt(s.dic, 0),
+        fmt::opt(s.ph_t, 3),
+        fmt::opt(s.pco2, 0),
+        fmt::opt(s.omega_ar, 2),
+        fmt::opt(s.omega_ca, 2),
+        measured_text(s),
+        flags,
+    ]
+}
+
+/// Appendix columns: (heading, unit line, right-aligned).
+const APPENDIX_COLUMNS: [(&str, &str, bool); 15] = [
+    ("Line", "", true),
+    ("Date and time", "", false),
+    ("Station", "", false),
+    ("Season", "", false),
+    ("T", "°C", true),
+    ("S", "", true),
+    ("p", "dbar", true),
+    ("TA", "µmol/kg", true),
+    ("DIC", "µmol/kg", true),
+    ("pH", "total", true),
+    ("pCO2", "µatm", true),
+    ("Ωar", "", true),
+    ("Ωca", "", true),
+    ("Measured", "", false),
+    ("QC flags", "", false),
+];
+
+/// One record file's rows for the appendix: the structured rows and the same rows laid out as
+/// fixed-width text (a data listing: one padded text per sample typesets quickly even for a
+/// year of hourly sensor data), each as [columns up to "Measured", QC flags], with a two-line
+/// header of the same shape.
+fn sample_group(file: &str, rows: &[&SampleRow]) -> Value {
+    let cells: Vec<[String; 15]> = rows.iter().map(|s| sample_cells(s)).collect();
+    let n = APPENDIX_COLUMNS.len();
+    let mut widths: Vec<usize> = APPENDIX_COLUMNS
+        .iter()
+        .map(|(h, u, _)| h.chars().count().max(u.chars().count()))
+        .collect();
+    for row in &cells {
+        for (w, c) in widths.iter_mut().zip(row.iter()) {
+            *w = (*w).max(c.chars().count());
+        }
+    }
+    // Every column but the last (the QC flags, which may wrap in their own cell) padded to a
+    // common width; returns [fixed-width part, flags].
+    let line = |items: &[&str]| -> [String; 2] {
+        let mut out = String::new();
+        for (k, item) in items.iter().enumerate().take(n - 1) {
+            let (_, _, right) = APPENDIX_COLUMNS[k];
+            let pad = widths[k].saturating_sub(item.chars().count());
+            if k > 0 {
+                out.push_str("  ");
+            }
+            if right {
+                out.extend(std::iter::repeat_n(' ', pad));
+                out.push_str(item);
+            } else {
+                out.push_str(item);
+                out.extend(std::iter::repeat_n(' ', pad));
+            }
+        }
+        [
+            out,
+            items.get(n - 1).copied().unwrap_or_default().to_string(),
+        ]
+    };
+    let heads: Vec<&str> = APPENDIX_COLUMNS.iter().map(|(h, _, _)| *h).collect();
+    let units: Vec<&str> = APPENDIX_COLUMNS.iter().map(|(_, u, _)| *u).collect();
+    let lines: Vec<[String; 2]> = cells
+        .iter()
+        .map(|c| line(&c.iter().map(String::as_str).collect::<Vec<_>>()))
+        .collect();
+    let structured: Vec<Value> = rows
+        .iter()
+        .zip(&cells)
+        .map(|(s, c)| {
+            json!({
+                "row": c[0], "date": c[1], "station": c[2], "season": c[3],
+                "temp": c[4], "sal": c[5], "p": c[6], "ta": c[7], "dic": c[8], "ph": c[9],
+                "pco2": c[10], "omega_ar": c[11], "omega_ca": c[12], "measured": c[13],
+                "flags": s.flags.join("; "), "used": s.used,
+            })
+        })
+        .collect();
+    json!({
+        "file": file,
+        "count": rows.len().to_string(),
+        "header": [line(&heads), line(&units)],
+        "lines": lines,
+        "rows": structured,
+    })
+}
+
 fn site_view(model: &ReportModel, site: &SiteReport, figs: &SiteFigures) -> Value {
     let coords = match (site.latitude, site.longitude) {
         (Some(lat), Some(lon)) => Some(format!(
@@ -332,6 +462,46 @@ fn site_view(model: &ReportModel, site: &SiteReport, figs: &SiteFigures) -> Valu
             })
         })
         .collect();
+    // The same crossings as a table: one row per pathway and season, one cell per level
+    // (median year, with the early and late estimates), so that a site with twelve seasons
+    // gets 36 rows rather than 108.
+    let mut crossing_rows = Vec::new();
+    for p in &model.pathways {
+        let mut first = true;
+        for season in &seasons {
+            let cells: Vec<Value> = model
+                .thresholds
+                .levels
+                .iter()
+                .map(|level| {
+                    site.crossings
+                        .iter()
+                        .find(|c| c.pathway == p.id && c.season == *season && c.threshold == *level)
+                        .map_or_else(
+                            || json!({ "median": fmt::MISSING, "early": "", "late": "" }),
+                            |c| {
+                                json!({
+                                    "median": crossing_text(c.median),
+                                    "early": crossing_text(c.early),
+                                    "late": crossing_text(c.late),
+                                })
+                            },
+                        )
+                })
+                .collect();
+            if cells.iter().all(|c| c["median"] == fmt::MISSING) {
+                continue;
+            }
+            crossing_rows.push(json!({
+                "pathway": p.label,
+                "first": first,
+                "season": season,
+                "limiting": Some(*season) == site.limiting_season(),
+                "cells": cells,
+            }));
+            first = false;
+        }
+    }
     // Chance below each level: rows pathway × horizon (limiting season), columns levels.
     let season = site.limiting_season().unwrap_or_default();
     let mut probability_rows = Vec::new();
@@ -404,34 +574,24 @@ fn site_view(model: &ReportModel, site: &SiteReport, figs: &SiteFigures) -> Valu
             })).collect::<Vec<_>>(),
         })
     });
-    let samples: Vec<Value> = if model.include_appendix {
-        site.samples
-            .iter()
-            .map(|s| {
-                let m = |name: &str| s.measured.iter().any(|x| x == name);
-                json!({
-                    "file": s.file,
-                    "row": s.row.to_string(),
-                    "date": s.date,
-                    "station": s.station,
-                    "season": s.season,
-                    "temp": fmt::temp(s.temp_c),
-                    "sal": fmt::salinity(s.salinity),
-                    "p": fmt::pressure(s.pressure_dbar),
-                    "ta": fmt::opt(s.ta, 0), "ta_m": m("ta"),
-                    "dic": fmt::opt(s.dic, 0), "dic_m": m("dic"),
-                    "ph": fmt::opt(s.ph_t, 3), "ph_m": m("ph_t"),
-                    "pco2": fmt::opt(s.pco2, 0), "pco2_m": m("pco2") || m("fco2"),
-                    "omega_ar": fmt::opt(s.omega_ar, 2),
-                    "omega_ca": fmt::opt(s.omega_ca, 2),
-                    "flags": s.flags.join("; "),
-                    "used": s.used,
-                })
-            })
-            .collect()
-    } else {
-        Vec::new()
-    };
+    // The appendix: one group per record file (in the order the files first appear), rows in
+    // file order.
+    let mut groups: Vec<(&str, Vec<&SampleRow>)> = Vec::new();
+    if model.include_appendix {
+        for s in &site.samples {
+            match groups.iter_mut().find(|(file, _)| *file == s.file) {
+                Some((_, rows)) => rows.push(s),
+                None => groups.push((s.file.as_str(), vec![s])),
+            }
+        }
+    }
+    let sample_files: Vec<Value> = groups
+        .into_iter()
+        .map(|(file, mut rows)| {
+            rows.sort_by_key(|r| r.row);
+            sample_group(file, &rows)
+        })
+        .collect();
     json!({
         "id": site.id,
         "name": site.name,
@@ -452,6 +612,7 @@ fn site_view(model: &ReportModel, site: &SiteReport, figs: &SiteFigures) -> Valu
         "verdict": verdict_view(model, site),
         "projection": projection_rows,
         "crossings": crossings,
+        "crossing_table": crossing_rows,
         "probabilities": probability_rows,
         "calcification": calcification,
         "scenarios": scenarios,
@@ -471,8 +632,9 @@ fn site_view(model: &ReportModel, site: &SiteReport, figs: &SiteFigures) -> Valu
             "fans": figs.fans.iter().map(|(id, f)| json!({
                 "pathway": pathway_label(model, id), "path": f.path(), "alt": f.alt,
             })).collect::<Vec<_>>(),
+            "calcification_legend": figs.calcification_legend.as_ref().map(fig),
         },
-        "samples": samples,
+        "sample_files": sample_files,
     })
 }
 
@@ -598,11 +760,15 @@ fn comparison_view(model: &ReportModel, figures: &ReportFigures) -> Value {
             })
         })
         .collect();
-    // First year below each level, per site and pathway (limiting season, median).
+    // First year below each level, per site and pathway (limiting season, median): one row
+    // per site and level, and the same grouped per site (`crossing_groups`: one row per site
+    // whose cells hold one line per level, so that a site's rows never split over pages).
     let mut crossing_rows = Vec::new();
+    let mut crossing_groups = Vec::new();
     for e in &ranked {
         let site = &model.sites[e.site];
         let season = site.limiting_season().unwrap_or_default();
+        let mut per_pathway: Vec<Vec<String>> = vec![Vec::new(); model.pathways.len()];
         for (li, level) in model.thresholds.levels.iter().enumerate() {
             let cells: Vec<String> = model
                 .pathways
@@ -614,6 +780,11 @@ fn comparison_view(model: &ReportModel, figures: &ReportFigures) -> Value {
                         .map_or_else(|| fmt::MISSING.to_string(), |c| crossing_text(c.median))
                 })
                 .collect();
+            for (k, c) in cells.iter().enumerate() {
+                if let Some(col) = per_pathway.get_mut(k) {
+                    col.push(c.clone());
+                }
+            }
             crossing_rows.push(json!({
                 "site": site.name,
                 "first": li == 0,
@@ -621,13 +792,19 @@ fn comparison_view(model: &ReportModel, figures: &ReportFigures) -> Value {
                 "cells": cells,
             }));
         }
+        crossing_groups.push(json!({
+            "site": site.name,
+            "season": season,
+            "levels": model.thresholds.levels.iter().map(|l| fmt::level(*l)).collect::<Vec<_>>(),
+            "cells": per_pathway,
+        }));
     }
     let criteria = vec![
         format!(
-            "Order: median Ωₐᵣ of each site's limiting season (the season with the lowest \
+            "Order: median Ω_ar of each site's limiting season (the season with the lowest \
              present-day mean) in {last} under {pathway_name}; higher ranks first."
         ),
-        "Ties: the present-day seasonal minimum of the mean Ωₐᵣ (higher first).".to_string(),
+        "Ties: the present-day seasonal minimum of the mean Ω_ar (higher first).".to_string(),
         format!(
             "Shown for context, not used for the order: the medians at the other horizon years \
              and {}.",
@@ -644,7 +821,9 @@ fn comparison_view(model: &ReportModel, figures: &ReportFigures) -> Value {
         "calc_relationship": first_calc_name,
         "rows": rows,
         "crossings": crossing_rows,
+        "crossing_groups": crossing_groups,
         "figures": figures.comparison.iter().map(fig).collect::<Vec<_>>(),
+        "key_figure": figures.comparison_key.as_ref().map(fig),
     })
 }
 

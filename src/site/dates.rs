@@ -293,7 +293,13 @@ fn parse_time_and_offset(
             "hours must be 0–23, minutes and seconds 0–59",
         ));
     };
-    let offset = parse_offset(s[i..].trim()).ok_or_else(bad)?;
+    let rest = s.get(i..).unwrap_or("").trim();
+    let offset = parse_offset(rest).ok_or_else(|| {
+        CellError::new(
+            format!("`{rest}` in `{s}` is not a UTC offset"),
+            "write the offset as Z, UTC, +HH:MM, +HHMM or +HH (hours 0–14, minutes 0–59), or leave it out to use the site's utc_offset",
+        )
+    })?;
     Ok((Some(clock), offset))
 }
 
@@ -350,6 +356,13 @@ pub fn parse_number(cell: &str, extra_missing: &[String]) -> Result<Option<f64>,
     }
     if BUILT_IN_MISSING.iter().any(|m| m.eq_ignore_ascii_case(s)) {
         return Ok(None);
+    }
+    let word = s.trim_start_matches(['+', '-']).to_ascii_lowercase();
+    if (plain && s.parse::<f64>().is_ok()) || word == "inf" || word == "infinity" {
+        return Err(CellError::new(
+            format!("`{s}` is not a finite number"),
+            "values must be finite decimal numbers within the physical limits (e.g. 2301.5); leave the cell empty for no value",
+        ));
     }
     let help = if s.bytes().filter(|b| *b == b',').count() == 1
         && s.replace(',', ".").parse::<f64>().is_ok()

@@ -132,6 +132,21 @@ fn summarise(sum: &mut RecordSummary, smp: &Sample) {
     sum.ta_estimated += usize::from(smp.ta_estimated);
 }
 
+/// Adds the cell position to row findings that name a quantity but no column (those found
+/// after unit conversion or solving), so that every row message points at its cell.
+fn add_columns(
+    mut findings: Vec<RowFinding>,
+    columns: &[Option<records::Columns>],
+) -> Vec<RowFinding> {
+    for f in &mut findings {
+        if f.line > 0 && f.column.is_none() {
+            let cols = columns.get(f.file).and_then(Option::as_ref);
+            f.column = cols.and_then(|c| f.field.as_deref().and_then(|k| c.index_of(k)));
+        }
+    }
+    findings
+}
+
 fn error_at(file: &Path, message: String, help: &str) -> Diagnostics {
     Diagnostics::from(Diagnostic::error(message).with_file(file).with_help(help))
 }
@@ -152,13 +167,27 @@ pub fn load_site_at(path: &Path, now: DateTime<Utc>) -> Result<LoadedSite, Diagn
         )
     })?;
     let text = String::from_utf8(bytes).map_err(|e| {
-        error_at(
-            path,
-            format!(
-                "the site file is not UTF-8 text (invalid byte at offset {})",
-                e.utf8_error().valid_up_to()
+        let at = e.utf8_error().valid_up_to();
+        let bytes = e.as_bytes();
+        let before = bytes.get(..at).unwrap_or_default();
+        let line = 1 + before.iter().filter(|b| **b == b'\n').count();
+        let start = before.iter().rposition(|b| *b == b'\n').map_or(0, |p| p + 1);
+        let line_bytes = bytes.get(start..).unwrap_or_default();
+        let line_bytes = line_bytes.split(|b| *b == b'\n').next().unwrap_or_default();
+        let column = 1 + String::from_utf8_lossy(bytes.get(start..at).unwrap_or_default())
+            .chars()
+            .count();
+        let byte = bytes.get(at).copied().unwrap_or(0);
+        Diagnostics::from(
+            Diagnostic::error(format!(
+                "the site file is not UTF-8 text (byte 0x{byte:02X} at line {line}, column {column})"
+            ))
+            .with_file(path)
+            .at(line, column)
+            .with_snippet(String::from_utf8_lossy(line_bytes).trim_end().to_string())
+            .with_help(
+                "save the file as UTF-8 (a byte like this usually means the file was saved as Latin-1 or Windows-1252)",
             ),
-            "save the file as UTF-8",
         )
     })?;
     let (site, map) = spans::parse_site_text(path, &text)?;
@@ -196,7 +225,7 @@ pub fn load_site_at(path: &Path, now: DateTime<Utc>) -> Result<LoadedSite, Diagn
     let files = res.record_paths.clone();
     let has_error = |f: &[RowFinding]| f.iter().any(|x| x.severity == Severity::Error);
     let fail = |findings: Vec<RowFinding>, mut diags: Diagnostics| {
-        diags.extend(qc::to_diagnostics(findings, &files));
+        diags.extend(qc::to_diagnostics(add_columns(findings, &columns), &files));
         Err(diags)
     };
     if has_error(&findings) {
@@ -410,7 +439,7 @@ pub fn load_site_at(path: &Path, now: DateTime<Utc>) -> Result<LoadedSite, Diagn
             .with_help("add samples for these seasons, or define fewer, longer seasons in [seasons]"),
         );
     }
-    diags.extend(qc::to_diagnostics(findings, &files));
+    diags.extend(qc::to_diagnostics(add_columns(findings, &columns), &files));
     let n_est: usize = summaries.iter().map(|s| s.ta_estimated).sum();
     if let (Some(f), true) = (ta_fit, n_est > 0) {
         let how = match f.model {

@@ -296,6 +296,23 @@ pub(crate) struct Columns {
 }
 
 impl Columns {
+    /// Index of the cell holding `key` (a quantity as named in row findings), if any.
+    pub(crate) fn index_of(&self, key: &str) -> Option<usize> {
+        match key {
+            "date" => Some(self.date),
+            "temp_c" => self.temp,
+            "salinity" => self.sal,
+            "depth_m" => self.depth,
+            "pressure_dbar" => self.pres,
+            "ta" => self.ta,
+            "dic" => self.dic,
+            "ph" | "ph_t" => self.ph,
+            "co2" | "pco2" | "fco2" | "xco2" => self.co2,
+            "silicate" => self.si,
+            "phosphate" => self.po4,
+            _ => None,
+        }
+    }
     pub fn has_ta(&self) -> bool {
         self.ta.is_some()
     }
@@ -329,10 +346,40 @@ fn find_column(
             _ => None,
         }
     };
+    // The same header twice leaves it open which column holds the values: an error.
+    let unique = |i: usize, out: &mut Vec<RowFinding>| -> Option<usize> {
+        let name = headers.get(i)?;
+        let cols: Vec<String> = headers
+            .iter()
+            .enumerate()
+            .filter(|(_, h)| *h == name)
+            .map(|(j, _)| (j + 1).to_string())
+            .collect();
+        if cols.len() < 2 {
+            return Some(i);
+        }
+        out.push(RowFinding {
+            kind: "duplicate-column",
+            severity: Severity::Error,
+            file: ctx.file_index,
+            line: header_line,
+            column: Some(i),
+            field: Some(format!("records[{}].columns.{key}", ctx.spec_index)),
+            message: format!(
+                "the header of {} has `{name}` more than once (columns {})",
+                ctx.path.display(),
+                cols.join(", ")
+            ),
+            help: Some(format!(
+                "rename or remove the extra `{name}` columns so that the {key} values are in one column"
+            )),
+        });
+        None
+    };
     if let Some(name) = mapped {
         let name = name.trim();
         if let Some(i) = exact(name).or_else(|| loose(name)) {
-            return Some(i);
+            return unique(i, out);
         }
         let list = headers
             .iter()
@@ -358,10 +405,11 @@ fn find_column(
         });
         return None;
     }
-    defaults
+    let i = defaults
         .iter()
         .find_map(|d| exact(d))
-        .or_else(|| defaults.iter().find_map(|d| loose(d)))
+        .or_else(|| defaults.iter().find_map(|d| loose(d)))?;
+    unique(i, out)
 }
 
 pub(crate) fn resolve_columns(
@@ -552,6 +600,16 @@ pub(crate) fn read_record(
         }
     };
     let header_line = usize::try_from(headers.position().map_or(1, |p| p.line())).unwrap_or(1);
+    // UTF-16 (a common spreadsheet "Unicode text" export) would otherwise show as garbage.
+    let raw = headers.as_slice();
+    if raw.starts_with(&[0xFF, 0xFE]) || raw.starts_with(&[0xFE, 0xFF]) || raw.contains(&0) {
+        // No line: a snippet of UTF-16 bytes would only print garbage.
+        findings.push(file_err(
+            format!("{} is not UTF-8 text (it looks like UTF-16)", ctx.path.display()),
+            "save or export the file as \"CSV UTF-8\" (comma-separated)",
+        ));
+        return None;
+    }
     let header_names: Vec<String> = headers
         .iter()
         .map(|h| {
@@ -589,7 +647,18 @@ pub(crate) fn read_record(
     let mut last_station: Option<Arc<str>> = None;
     let mut rec = csv::ByteRecord::new();
     let start_len = out.len();
+    // Reserve the whole file's rows once, estimated from the first rows, so that a long
+    // sensor series does not pay for the vector doubling (which briefly holds 1.5× the rows).
+    let file_len = std::fs::metadata(&ctx.path).map_or(0, |m| m.len());
+    let mut reserved = false;
     loop {
+        if !reserved && out.len() - start_len == 1000 {
+            reserved = true;
+            let used = rdr.position().byte().max(1);
+            let estimate = file_len.saturating_mul(1000) / used;
+            let extra = usize::try_from(estimate + estimate / 50).unwrap_or(0);
+            out.reserve_exact(extra.saturating_sub(1000));
+        }
         match rdr.read_byte_record(&mut rec) {
             Ok(true) => {}
             Ok(false) => break,
@@ -636,8 +705,15 @@ pub(crate) fn read_record(
                 "row",
                 CellError {
                     message: format!("the row has {} cells but the header has {ncols}", rec.len()),
-                    help: "every row must have as many comma-separated cells as the header"
-                        .to_string(),
+                    // A quoted cell running over line ends is almost always a missing quote.
+                    help: if rec.iter().any(|c| c.contains(&b'\n')) {
+                        format!(
+                            "a quoted cell starting on line {line} runs over several lines: check for a missing closing quote (\")"
+                        )
+                    } else {
+                        "every row must have as many comma-separated cells as the header"
+                            .to_string()
+                    },
                 },
                 Severity::Error,
                 "cell-count",
@@ -710,6 +786,10 @@ pub(crate) fn read_record(
         let station = match (&station_fixed, cols.station) {
             (Some(s), _) => s.clone(),
             (None, Some(i)) => match cell(i) {
+                Err(e) => {
+                    row_err(Some(i), "station", e, Severity::Error, "non-utf8");
+                    continue;
+                }
                 Ok(s) if !s.trim().is_empty() => {
                     let s = s.trim();
                     match &last_station {
@@ -744,8 +824,12 @@ pub(crate) fn read_record(
                             "set on_out_of_range = \"drop\" for the record to drop such rows instead",
                         )
                     };
-                    let message = chem_msg
-                        .unwrap_or_else(|| format!("{key} = {v} is outside {lo}…{hi}{unit}"));
+                    // The record limits are the narrower ones: say the same range as the help.
+                    let message = if v < lo || v > hi {
+                        format!("{key} = {v}{unit} is outside the valid range {lo} to {hi}{unit}")
+                    } else {
+                        chem_msg.unwrap_or_default()
+                    };
                     row_err(
                         col,
                         key,

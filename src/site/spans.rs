@@ -183,9 +183,19 @@ pub fn parse_site_text(file: &Path, text: &str) -> Result<(SiteFile, SourceMap),
     if !errors.is_empty() {
         let mut ds = Diagnostics::new();
         for e in errors {
-            let mut d = Diagnostic::error(format!("TOML syntax error: {}", e.message()))
-                .with_file(file)
-                .with_help("see docs/site-format.md for the layout of a site file");
+            // Name the key: toml says only "duplicate key".
+            let message = match e.span().and_then(|s| text.get(s)) {
+                Some(key) if e.message().trim() == "duplicate key" => {
+                    format!("TOML syntax error: duplicate key `{}`", key.trim())
+                }
+                _ => format!("TOML syntax error: {}", e.message()),
+            };
+            let help = if e.message().contains("duplicate key") {
+                "each key and each [section] may appear only once; a list of record files is written as several [[records]] (double brackets)"
+            } else {
+                "see docs/site-format.md for the layout of a site file"
+            };
+            let mut d = Diagnostic::error(message).with_file(file).with_help(help);
             if let Some(span) = e.span() {
                 let (line, col) = lines.line_col(text, span.start);
                 d = d
@@ -217,7 +227,7 @@ fn serde_error(file: &Path, map: &SourceMap, e: &toml::de::Error) -> Diagnostic 
         .and_then(|s| map.path_at(s.start))
         .map(str::to_string);
     let mut d = Diagnostic::error(msg.to_string()).with_file(file);
-    if let Some(s) = span {
+    if let Some(s) = span.clone() {
         d = map.locate(d, s);
     }
 
@@ -247,6 +257,19 @@ fn serde_error(file: &Path, map: &SourceMap, e: &toml::de::Error) -> Diagnostic 
     }
     if let Some(rest) = msg.strip_prefix("missing field `") {
         let key = rest.split('`').next().unwrap_or("");
+        // An empty span at the start is the document itself: a missing top-level section.
+        let top_level = span.as_ref().is_some_and(|s| s.is_empty());
+        if top_level {
+            d.line = None;
+            d.column = None;
+            d.snippet = None;
+            d.message = format!("missing required section `[{key}]`");
+            d.help = Some(format!(
+                "add a [{key}] section (see docs/site-format.md; `calcisite init DIR` writes a complete example)"
+            ));
+            d.field = Some(key.to_string());
+            return d;
+        }
         let table = path.clone().unwrap_or_default();
         let full = if table.is_empty() {
             key.to_string()
@@ -270,6 +293,38 @@ fn serde_error(file: &Path, map: &SourceMap, e: &toml::de::Error) -> Diagnostic 
         {
             d = map.locate(d, s);
         }
+        return d;
+    }
+    if msg == "wanted string or table" {
+        // A fixed-set value (kind, unit, scale, method...) given as a number, list or boolean.
+        let key = path
+            .as_deref()
+            .map(|p| p.rsplit('.').next().unwrap_or(p).to_string())
+            .unwrap_or_default();
+        d.message = "wrong type: expected a name in quotes".to_string();
+        d.help = Some(format!(
+            "write the value as a quoted name, e.g. {key} = \"...\"; docs/site-format.md lists the valid names"
+        ));
+        d.field = path;
+        return d;
+    }
+    if msg.contains("untagged enum MonthRef") {
+        d.message = "wrong type: a month must be a whole number or a name".to_string();
+        d.help = Some("months are 1–12 or names such as \"Jan\" or \"January\"".to_string());
+        d.field = path;
+        return d;
+    }
+    if let Some(rest) = msg.strip_prefix("invalid length ") {
+        // "invalid length 1, expected an array of length 2"
+        let (found, expected) = rest.split_once(", expected ").unwrap_or((rest, ""));
+        d.message = format!("wrong number of items: found {found}");
+        let points = path.as_deref().is_some_and(|p| p.contains("points"));
+        d.help = Some(if points {
+            "write each point as [year, ppm], e.g. [2050, 520.0]".to_string()
+        } else {
+            format!("expected {expected}")
+        });
+        d.field = path;
         return d;
     }
     if let Some(rest) = msg.strip_prefix("invalid value: ") {

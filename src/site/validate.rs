@@ -160,7 +160,7 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
             c.error(
                 "site.utc_offset",
                 format!("`{}` is not a UTC offset", s.utc_offset),
-                "write the offset of local time from UTC as \"+HH:MM\" or \"-HH:MM\", e.g. \"+10:00\"",
+                "write the offset of local time from UTC as \"+HH:MM\" or \"-HH:MM\" (hours 0–14, minutes 0–59), e.g. \"+10:00\"",
             );
             None
         }
@@ -490,7 +490,10 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
     {
         c.error(
             "thresholds",
-            "the Omega_ar class boundaries are not in decreasing order",
+            &format!(
+                "the Omega_ar class boundaries are not in decreasing order: optimal {}, adequate {}, marginal {}",
+                t.omega_ar_optimal_min, t.omega_ar_adequate_min, t.omega_ar_marginal_min
+            ),
             "require omega_ar_optimal_min > omega_ar_adequate_min > omega_ar_marginal_min (defaults 4.0, 3.5, 3.0)",
         );
     }
