@@ -27,6 +27,29 @@ fn forget(path: &Path) {
     }
 }
 
+/// The folder an output file will be written into, or an error saying plainly what is
+/// wrong with it (missing, or not a folder). Commands call this before expensive work.
+pub fn output_folder(path: &Path) -> io::Result<PathBuf> {
+    let dir = match path.parent() {
+        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    match std::fs::metadata(&dir) {
+        Ok(m) if !m.is_dir() => Err(io::Error::other(format!(
+            "{} is not a folder",
+            dir.display()
+        ))),
+        Err(e) if e.kind() == io::ErrorKind::NotFound => Err(io::Error::new(
+            e.kind(),
+            format!(
+                "the folder {} does not exist; create it first",
+                dir.display()
+            ),
+        )),
+        _ => Ok(dir),
+    }
+}
+
 /// Write `path` atomically: `fill` writes the whole content into a temporary file beside
 /// `path`, which is then renamed over it. On any error the temporary file is removed and
 /// `path` is left as it was.
@@ -34,29 +57,7 @@ pub fn write_atomic<F>(path: &Path, fill: F) -> io::Result<()>
 where
     F: FnOnce(&mut dyn Write) -> io::Result<()>,
 {
-    let dir = match path.parent() {
-        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    // Say what is wrong with the folder rather than naming the temporary file.
-    match std::fs::metadata(&dir) {
-        Ok(m) if !m.is_dir() => {
-            return Err(io::Error::other(format!(
-                "{} is not a folder",
-                dir.display()
-            )));
-        }
-        Err(e) if e.kind() == io::ErrorKind::NotFound => {
-            return Err(io::Error::new(
-                e.kind(),
-                format!(
-                    "the folder {} does not exist; create it first",
-                    dir.display()
-                ),
-            ));
-        }
-        _ => {}
-    }
+    let dir = output_folder(path)?;
     let tmp = tempfile::Builder::new()
         .prefix(".calcisite-")
         .suffix(".part")
@@ -137,6 +138,6 @@ mod tests {
         let target = dir.path().join("out.csv");
         write_bytes_atomic(&target, b"new").unwrap();
         assert_eq!(std::fs::read_to_string(&target).unwrap(), "new");
-        assert!(is_same_file_as_any(&target, &[target.clone()]));
+        assert!(is_same_file_as_any(&target, std::slice::from_ref(&target)));
     }
 }

@@ -139,6 +139,13 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
         eprintln!("error: no output file given (use -o FILE.pdf)");
         return EXIT_INPUT;
     };
+    // Refuse an impossible output path before the sites are projected and typeset.
+    for target in std::iter::once(out).chain(args.data_out.as_deref()) {
+        if let Err(e) = crate::fsio::output_folder(target) {
+            eprintln!("error: cannot write {}: {e}", target.display());
+            return EXIT_INPUT;
+        }
+    }
     let overrides = EnsembleOverrides {
         seed: args.seed,
         members: None,

@@ -354,12 +354,18 @@ mod tests {
             "[projection]\npathways = [\"far\"]\n\
              [[projection.user_pathways]]\nname = \"far\"\npoints = [[2030, 450.0], [2100, 4000.0]]\n",
         );
-        let loaded = load_site(&path).map_err(|d| d.render(false)).unwrap();
-        let e = from_loaded_site(&loaded).unwrap_err().render(false);
+        // The site check applies the outlook's own pathway limits (150–3000 ppm), so the
+        // site already fails to load, naming the field.
+        let e = load_site(&path).unwrap_err().render(false);
         assert!(
             e.contains("projection.user_pathways[0]") && e.contains("4000"),
             "{e}"
         );
         assert!(e.contains("site.toml"), "{e}");
+        // Settings the site check leaves to the outlook are still named by field.
+        let path = write_site(dir.path(), "[projection]\nmembers = 200000\n");
+        let loaded = load_site(&path).map_err(|d| d.render(false)).unwrap();
+        let e = from_loaded_site(&loaded).unwrap_err().render(false);
+        assert!(e.contains("projection.members"), "{e}");
     }
 }

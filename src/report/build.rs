@@ -22,6 +22,9 @@ const ANNUAL: &str = crate::outlook::ensemble::AGGREGATE_LABEL;
 /// stays in the figures and in `--data-out`).
 const PREFERRED_HORIZONS: [i32; 5] = [2030, 2040, 2050, 2075, 2100];
 
+/// Per season while counting coverage: solved samples, years, first and last date.
+type SeasonTally = (usize, BTreeSet<i32>, Option<String>, Option<String>);
+
 /// One site ready for the report: what `check` loaded and what `project` computed.
 pub struct SiteRun<'a> {
     pub loaded: &'a LoadedSite,
@@ -549,8 +552,7 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
     let mut first = None;
     let mut last = None;
     let n_seasons = loaded.seasons.len();
-    let mut per_season: Vec<(usize, BTreeSet<i32>, Option<String>, Option<String>)> =
-        vec![(0, BTreeSet::new(), None, None); n_seasons];
+    let mut per_season: Vec<SeasonTally> = vec![(0, BTreeSet::new(), None, None); n_seasons];
     let mut sorted_times: Vec<_> = loaded.samples.iter().map(|s| s.time).collect();
     sorted_times.sort();
     for s in &loaded.samples {

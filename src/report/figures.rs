@@ -1621,7 +1621,7 @@ pub(crate) mod tests {
     fn extrapolated_points_are_explained() {
         let model = example_model(1);
         let figs = build_all(&model).unwrap();
-        let extrapolated = model.sites[0]
+        let _extrapolated_site = model.sites[0]
             .calcification
             .iter()
             .zip(&figs.sites[0].calcification)

@@ -326,8 +326,7 @@ mod tests {
     fn template_error_names_file_line_and_column() {
         let dir = template_dir("= Fine\n\nSome text.\n#let broken = (1, 2\nmore\n");
         let e = render_with(dir.path())
-            .err()
-            .expect("broken template must fail")
+            .expect_err("broken template must fail")
             .to_string();
         let file = dir.path().join("report.typ").display().to_string();
         assert!(e.contains(&format!("{file}:4:")), "no file:line in\n{e}");
@@ -398,8 +397,7 @@ mod tests {
         )
         .unwrap();
         let e = render_with(dir.path())
-            .err()
-            .expect("symlink must be refused")
+            .expect_err("symlink must be refused")
             .to_string();
         assert!(e.contains("outside the template directory"), "{e}");
     }

@@ -352,10 +352,10 @@ impl World for ReportWorld {
     }
 
     fn source(&self, id: FileId) -> FileResult<Source> {
-        if let Ok(cache) = self.sources.lock() {
-            if let Some(s) = cache.get(&id) {
-                return s.clone();
-            }
+        if let Ok(cache) = self.sources.lock()
+            && let Some(s) = cache.get(&id)
+        {
+            return s.clone();
         }
         let result = self.load(id).and_then(|bytes| {
             let text = std::str::from_utf8(bytes.as_slice()).map_err(|_| FileError::InvalidUtf8)?;

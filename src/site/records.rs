@@ -605,7 +605,10 @@ pub(crate) fn read_record(
     if raw.starts_with(&[0xFF, 0xFE]) || raw.starts_with(&[0xFE, 0xFF]) || raw.contains(&0) {
         // No line: a snippet of UTF-16 bytes would only print garbage.
         findings.push(file_err(
-            format!("{} is not UTF-8 text (it looks like UTF-16)", ctx.path.display()),
+            format!(
+                "{} is not UTF-8 text (it looks like UTF-16)",
+                ctx.path.display()
+            ),
             "save or export the file as \"CSV UTF-8\" (comma-separated)",
         ));
         return None;

@@ -339,10 +339,9 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
             );
         }
         let mut prev = f64::NEG_INFINITY;
-        // Loose sanity ranges only: the outlook stage applies its own limits to pathways
-        // (and `check` runs those checks too).
-        let (y0, y1) = (1750.0, 2500.0);
-        let (c0, c1) = (0.0, 5000.0);
+        // The outlook's own limits, so that the site check and the projection agree.
+        let (y0, y1) = (1850.0, 2500.0);
+        let (c0, c1) = crate::outlook::pathways::USER_PPM_RANGE;
         for (j, [y, ppm]) in u.points.iter().enumerate() {
             let pp = format!("{path}.points[{j}]");
             if !y.is_finite() || *y < y0 || *y > y1 || y.fract() != 0.0 {
@@ -359,11 +358,11 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
                 );
             }
             prev = *y;
-            if !ppm.is_finite() || *ppm <= c0 || *ppm > c1 {
+            if !ppm.is_finite() || *ppm < c0 || *ppm > c1 {
                 c.error(
                     &pp,
                     format!("CO2 {ppm} ppm is outside the valid range"),
-                    format!("atmospheric CO2 must be above {c0} and at most {c1} ppm"),
+                    format!("atmospheric CO2 must be between {c0} and {c1} ppm"),
                 );
             }
         }
@@ -490,7 +489,7 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
     {
         c.error(
             "thresholds",
-            &format!(
+            format!(
                 "the Omega_ar class boundaries are not in decreasing order: optimal {}, adequate {}, marginal {}",
                 t.omega_ar_optimal_min, t.omega_ar_adequate_min, t.omega_ar_marginal_min
             ),
