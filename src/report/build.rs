@@ -865,13 +865,18 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
     let st = &outlook.settings;
     let mut notes: Vec<String> = Vec::new();
     if let Some(fit) = &loaded.baseline.ta_salinity {
-        notes.push(format!(
-            "TA–salinity relationship of the bottle samples: TA = {} {} {}·S µmol/kg (n = {}, r² = {:.2}, salinity {:.2}–{:.2}); used for rows without measured TA.",
-            super::fmt::number(fit.intercept_umol_kg, 1),
-            if fit.slope < 0.0 { "−" } else { "+" },
-            super::fmt::number(fit.slope.abs(), 2),
-            fit.n, fit.r2, fit.salinity_min, fit.salinity_max
-        ));
+        let estimated = loaded.samples.iter().filter(|s| s.ta_estimated).count();
+        notes.push(if estimated > 0 {
+            format!(
+                "{estimated} rows without measured TA take TA from the site's bottle samples: {}.",
+                fit.describe_model()
+            )
+        } else {
+            format!(
+                "TA–salinity regression of the bottle samples: TA = {:.1} + {:.2}·S µmol/kg (n {}, r² {:.2}, S {:.2}–{:.2}); every row has measured TA, so it is not used.",
+                fit.intercept_umol_kg, fit.slope, fit.n, fit.r2, fit.salinity_min, fit.salinity_max
+            )
+        });
     }
     notes.push(
         "Depths in metres are taken as that many decibars of hydrostatic pressure.".to_string(),

@@ -204,6 +204,31 @@ impl TaSalinityFit {
         })
     }
 
+    /// The model used for rows without measured TA, in words with its numbers, e.g. for
+    /// notes and reports: the linear fit, or the proportional (constant nTA) model.
+    pub fn describe_model(&self) -> String {
+        match self.model {
+            TaModelKind::Linear => format!(
+                "TA = {:.1} + {:.2}·S (r² {:.2}, n {}, S {:.2}–{:.2}, rms residual {:.1} µmol/kg)",
+                self.intercept_umol_kg,
+                self.slope,
+                self.r2,
+                self.n,
+                self.salinity_min,
+                self.salinity_max,
+                self.rmse_umol_kg
+            ),
+            TaModelKind::Proportional => format!(
+                "TA = {:.1}·S/35, the mean salinity-normalised TA of {} bottle samples (S {:.2}–{:.2} spans too little for a slope; rms residual {:.1} µmol/kg)",
+                self.nta_mean_umol_kg,
+                self.n,
+                self.salinity_min,
+                self.salinity_max,
+                self.rmse_umol_kg
+            ),
+        }
+    }
+
     /// TA (µmol/kg) estimated at salinity `s` with the chosen model.
     pub fn estimate(&self, s: f64) -> f64 {
         match self.model {

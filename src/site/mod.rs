@@ -442,22 +442,7 @@ pub fn load_site_at(path: &Path, now: DateTime<Utc>) -> Result<LoadedSite, Diagn
     diags.extend(qc::to_diagnostics(add_columns(findings, &columns), &files));
     let n_est: usize = summaries.iter().map(|s| s.ta_estimated).sum();
     if let (Some(f), true) = (ta_fit, n_est > 0) {
-        let how = match f.model {
-            baseline::TaModelKind::Linear => format!(
-                "TA = {:.1} + {:.2}·S (r² {:.2}, n {}, S {:.2}–{:.2}, rms residual {:.1} µmol/kg)",
-                f.intercept_umol_kg,
-                f.slope,
-                f.r2,
-                f.n,
-                f.salinity_min,
-                f.salinity_max,
-                f.rmse_umol_kg
-            ),
-            baseline::TaModelKind::Proportional => format!(
-                "TA = {:.1}·S/35, the mean salinity-normalised TA of {} bottle samples (S {:.2}–{:.2} spans too little for a slope; rms residual {:.1} µmol/kg)",
-                f.nta_mean_umol_kg, f.n, f.salinity_min, f.salinity_max, f.rmse_umol_kg
-            ),
-        };
+        let how = f.describe_model();
         diags.push(
             Diagnostic::note(format!(
                 "assumption: {n_est} rows without measured TA take TA from the site's bottle samples: {how}"
