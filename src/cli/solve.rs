@@ -18,6 +18,7 @@ use crate::chem::{
     solve_pair,
 };
 use crate::fsio;
+use crate::site::records::{TOL_CO2_FRACTION, TOL_PH, TOL_TA_DIC_UMOL_KG};
 
 /// Exit status when every row was solved.
 pub const EXIT_OK: i32 = 0;
@@ -46,15 +47,16 @@ const PREFERRED_PAIRS: &[(&str, &str)] = &[
     ("ph_t", "fco2"),
 ];
 
-/// Measured-minus-calculated tolerances for the consistency check of over-determined rows
-/// (common practice for good-quality bottle data; see `DEVELOPERS.md`).
+/// Measured-minus-calculated tolerances for the consistency check of over-determined rows:
+/// the same limits `check` applies to record files (see `site::records::TOL_*` for their
+/// basis), so that both commands judge a sample alike. CO3 shares the relative CO2 limit.
 const CONSISTENCY: &[(&str, f64, bool)] = &[
-    ("ta", 10.0, false),  // µmol/kg
-    ("dic", 10.0, false), // µmol/kg
-    ("ph_t", 0.02, false),
-    ("pco2", 0.05, true), // relative
-    ("fco2", 0.05, true),
-    ("co3", 0.05, true),
+    ("ta", TOL_TA_DIC_UMOL_KG, false),
+    ("dic", TOL_TA_DIC_UMOL_KG, false),
+    ("ph_t", TOL_PH, false),
+    ("pco2", TOL_CO2_FRACTION, true),
+    ("fco2", TOL_CO2_FRACTION, true),
+    ("co3", TOL_CO2_FRACTION, true),
 ];
 
 /// Output columns appended (or filled in place), in contract order.
