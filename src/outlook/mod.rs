@@ -19,6 +19,7 @@ pub mod pathways;
 pub mod projection;
 pub mod rng;
 pub mod scenario;
+pub mod thermal;
 pub mod thresholds;
 pub mod warming;
 
