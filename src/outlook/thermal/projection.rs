@@ -119,7 +119,7 @@ pub fn project_heat(
     let mut pathways = Vec::with_capacity(settings.pathways.len());
     for (p, name) in settings.pathways.iter().enumerate() {
         // Pattern maxima of one member in one year.
-        let mut member_year = |cache: &mut Cache<'_>, y: i32, m: usize, out: &mut Vec<f64>| {
+        let member_year = |cache: &mut Cache<'_>, y: i32, m: usize, out: &mut Vec<f64>| {
             out.clear();
             let w_y = warming(p, y, m) - allowance(y);
             for (j, &py) in patterns.iter().enumerate() {
