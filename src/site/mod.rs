@@ -19,6 +19,7 @@ pub mod qc;
 pub mod records;
 pub mod schema;
 pub mod spans;
+pub mod temperature;
 pub mod validate;
 
 use std::collections::{BTreeMap, HashMap};
