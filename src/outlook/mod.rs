@@ -13,6 +13,7 @@
 
 pub mod calcification;
 pub mod ensemble;
+pub mod exposure;
 pub mod from_site;
 pub mod output;
 pub mod pathways;
