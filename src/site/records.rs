@@ -1117,12 +1117,8 @@ pub(crate) fn choose_pair(m: &Measured, ta_est: Option<f64>) -> Option<(Pair, In
 }
 
 /// Internal-consistency tolerances (measured − calculated) for rows with three or more
-/// measured carbonate quantities. Common practice; the pH and TA/DIC values equal the
-/// GOA-ON "weather" quality goals (Newton et al. 2015, from memory; fact sheet §2c), the
-/// pCO2 tolerance is twice that goal to allow for equilibrator and constant errors.
-pub const TOL_PH: f64 = 0.02;
-pub const TOL_TA_DIC_UMOL_KG: f64 = 10.0;
-pub const TOL_CO2_FRACTION: f64 = 0.05;
+/// measured carbonate quantities, defined with their basis in `chem::measured`.
+pub use crate::chem::measured::{TOL_CO2_FRACTION, TOL_PH, TOL_TA_DIC_UMOL_KG};
 
 fn ph_scale(s: PhScaleName) -> chem::scales::PhScale {
     use chem::scales::PhScale;
