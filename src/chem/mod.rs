@@ -11,6 +11,7 @@
 //! pressure-corrected there (Millero 1995), and returned to the total scale with the
 //! pressure-corrected KSO4 and KF.
 
+pub mod catalogue;
 pub mod constants;
 pub mod density;
 pub mod gas;
@@ -56,34 +57,82 @@ impl Conditions {
     }
 }
 
-macro_rules! named_enum {
-    ($(#[$m:meta])* $name:ident { $($(#[$vm:meta])* $var:ident = $text:literal, $cite:literal, $range:expr;)+ }) => {
+/// A typed handle on one catalogue list: which entry of [`catalogue`] a method set uses.
+macro_rules! method_handle {
+    ($(#[$m:meta])* $name:ident, $kind:expr, $list:expr, $fn_ty:ty,
+     { $($(#[$cm:meta])* $alias:ident = $id:literal;)* }) => {
         $(#[$m])*
         #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash)]
-        pub enum $name { $($(#[$vm])* $var,)+ }
+        pub struct $name(u8);
+
+        #[allow(non_upper_case_globals)]
         impl $name {
-            /// Every option as (name, value).
-            pub const ALL: &'static [(&'static str, $name)] = &[$(($text, $name::$var),)+];
+            $($(#[$cm])* pub const $alias: $name = $name::from_id_const($id);)*
+
+            /// Every option as (id, value), the default first.
+            pub const ALL: &'static [(&'static str, $name)] = &{
+                let mut all = [("", $name(0)); $list.len()];
+                let mut i = 0;
+                while i < $list.len() {
+                    all[i] = ($list[i].id, $name(i as u8));
+                    i += 1;
+                }
+                all
+            };
+
+            /// The handle of a catalogue id known at compile time (a typo fails the build).
+            const fn from_id_const(id: &str) -> $name {
+                let mut i = 0;
+                while i < $list.len() {
+                    let a = $list[i].id.as_bytes();
+                    let b = id.as_bytes();
+                    if a.len() == b.len() {
+                        let mut j = 0;
+                        while j < a.len() && a[j] == b[j] {
+                            j += 1;
+                        }
+                        if j == a.len() {
+                            return $name(i as u8);
+                        }
+                    }
+                    i += 1;
+                }
+                panic!("id not in the catalogue")
+            }
+
+            /// Which catalogue choice this is.
+            pub const KIND: catalogue::MethodKind = $kind;
+
+            /// The catalogue entry.
+            pub fn entry(&self) -> &'static catalogue::Entry<$fn_ty> {
+                // Handles are only made from positions in this list (see `ALL` and
+                // `FromStr`), so the first arm always matches; the list is never empty.
+                match $list.get(usize::from(self.0)) {
+                    Some(e) => e,
+                    None => &$list[0],
+                }
+            }
+            /// The catalogue id.
+            pub fn id(&self) -> &'static str { self.entry().id }
             /// Short citation of the publication behind this option.
-            pub fn citation(&self) -> &'static str { match self { $($name::$var => $cite,)+ } }
+            pub fn citation(&self) -> &'static str { self.entry().citation }
             /// Fitted (temperature °C, salinity) ranges: ((t_min, t_max), (s_min, s_max)).
-            pub fn fitted_range(&self) -> ((f64, f64), (f64, f64)) { match self { $($name::$var => $range,)+ } }
-            /// The names accepted by `from_str`, for messages.
-            pub fn names() -> String { Self::ALL.iter().map(|(n, _)| *n).collect::<Vec<_>>().join(", ") }
+            pub fn fitted_range(&self) -> ((f64, f64), (f64, f64)) {
+                (self.entry().temp_c, self.entry().salinity)
+            }
+            /// The accepted ids, for messages.
+            pub fn names() -> String { Self::KIND.ids().join(", ") }
         }
         impl FromStr for $name {
-            type Err = String;
-            fn from_str(s: &str) -> Result<Self, String> {
-                let low = s.trim().to_ascii_lowercase();
-                Self::ALL.iter().find(|(n, _)| *n == low).map(|(_, v)| *v)
-                    .ok_or_else(|| format!("unknown {} '{}' (expected one of: {})", stringify!($name), s, Self::names()))
+            type Err = catalogue::UnknownMethod;
+            fn from_str(s: &str) -> Result<Self, catalogue::UnknownMethod> {
+                // The position is below the list length, which is below 256 (asserted in
+                // the catalogue).
+                Self::KIND.parse(s).map(|i| $name(i as u8))
             }
         }
         impl fmt::Display for $name {
-            fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-                let n = Self::ALL.iter().find(|(_, v)| v == self).map(|(n, _)| *n).unwrap_or("?");
-                f.write_str(n)
-            }
+            fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result { f.write_str(self.id()) }
         }
         impl Serialize for $name {
             fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> { s.collect_str(self) }
@@ -97,33 +146,31 @@ macro_rules! named_enum {
     };
 }
 
-named_enum! {
-    /// The K1, K2 set for carbonic acid.
-    K1K2 {
-        #[default]
-        Lueker2000 = "lueker2000", "Lueker, Dickson & Keeling (2000), Mar. Chem. 70:105", ((2.0, 35.0), (19.0, 43.0));
-        Millero2010 = "millero2010", "Millero (2010), Mar. Freshwater Res. 61:139", ((0.0, 50.0), (1.0, 50.0));
-        WatersMilleroWoosley2014 = "wmw2014", "Waters, Millero & Woosley (2014), Mar. Chem. 165:66", ((0.0, 50.0), (1.0, 50.0));
-        Sulpis2020 = "sulpis2020", "Sulpis et al. (2020), Ocean Sci. 16:847", ((-1.7, 31.8), (30.7, 37.6));
-        DicksonMillero1987 = "dm87", "Dickson & Millero (1987), Deep-Sea Res. 34:1733 (refit of Mehrbach et al. 1973)", ((2.0, 35.0), (20.0, 40.0));
+method_handle! {
+    /// The K1, K2 fit of carbonic acid: an entry of [`catalogue::CARBONIC_ACID`].
+    K1K2, catalogue::MethodKind::CarbonicAcid, catalogue::CARBONIC_ACID, catalogue::CarbonicAcidFn, {
+        Lueker2000 = "lueker2000";
+        Millero2010 = "millero2010";
+        WatersMilleroWoosley2014 = "wmw2014";
+        Sulpis2020 = "sulpis2020";
+        DicksonMillero1987 = "dm87";
     }
 }
 
-named_enum! {
-    /// The total-boron–salinity ratio.
-    BoronTotal {
-        #[default]
-        Lee2010 = "lee2010", "Lee et al. (2010), Geochim. Cosmochim. Acta 74:1801", ((-2.0, 45.0), (0.0, 50.0));
-        Uppstrom1974 = "uppstrom1974", "Uppström (1974), Deep-Sea Res. 21:161", ((-2.0, 45.0), (0.0, 50.0));
+method_handle! {
+    /// The total-boron–salinity ratio: an entry of [`catalogue::TOTAL_BORON`].
+    BoronTotal, catalogue::MethodKind::TotalBoron, catalogue::TOTAL_BORON, catalogue::TotalBoronFn, {
+        Lee2010 = "lee2010";
+        Uppstrom1974 = "uppstrom1974";
     }
 }
 
-named_enum! {
-    /// The hydrogen fluoride dissociation constant.
-    KfSource {
-        #[default]
-        PerezFraga1987 = "pf87", "Perez & Fraga (1987), Mar. Chem. 21:161", ((9.0, 33.0), (10.0, 40.0));
-        DicksonRiley1979 = "dr79", "Dickson & Riley (1979), Mar. Chem. 7:89", ((5.0, 35.0), (10.0, 48.0));
+method_handle! {
+    /// The hydrogen fluoride dissociation constant: an entry of
+    /// [`catalogue::HYDROGEN_FLUORIDE`].
+    KfSource, catalogue::MethodKind::HydrogenFluoride, catalogue::HYDROGEN_FLUORIDE, catalogue::HydrogenFluorideFn, {
+        PerezFraga1987 = "pf87";
+        DicksonRiley1979 = "dr79";
     }
 }
 
@@ -203,8 +250,22 @@ impl MethodSet {
                 ));
             }
         };
-        check("K1/K2", self.k1k2.citation(), self.k1k2.fitted_range());
-        check("KF", self.kf.citation(), self.kf.fitted_range());
+        use catalogue::MethodKind as K;
+        check(
+            K::CarbonicAcid.constant(),
+            self.k1k2.citation(),
+            self.k1k2.fitted_range(),
+        );
+        check(
+            K::TotalBoron.constant(),
+            self.boron.citation(),
+            self.boron.fitted_range(),
+        );
+        check(
+            K::HydrogenFluoride.constant(),
+            self.kf.citation(),
+            self.kf.fitted_range(),
+        );
         check("Ksp", "Mucci 1983", ((5.0, 40.0), (5.0, 44.0)));
         out
     }
@@ -249,20 +310,14 @@ impl Constants {
 
         let st = c::total_sulfate_morris_riley1966(s);
         let ft = c::total_fluoride_riley1965(s);
-        let bt = match m.boron {
-            BoronTotal::Lee2010 => c::total_boron_lee2010(s),
-            BoronTotal::Uppstrom1974 => c::total_boron_uppstrom1974(s),
-        };
+        let bt = (m.boron.entry().function)(s);
 
         use pressure as pc;
         let lnf = |terms: pc::VolumeTerms| terms.ln_factor(t_c, p_bar);
 
         // Free-scale constants at one atmosphere and in situ, and the SWS→total factors.
         let ln_ks0 = c::ln_ks_free_dickson1990(&x);
-        let ln_kf0 = match m.kf {
-            KfSource::PerezFraga1987 => c::ln_kf_free_perez_fraga1987(&x),
-            KfSource::DicksonRiley1979 => c::ln_kf_free_dickson_riley1979(&x),
-        };
+        let ln_kf0 = (m.kf.entry().function)(&x);
         let (ks0, kf0) = (ln_ks0.exp(), ln_kf0.exp());
         let ks = (ln_ks0 + lnf(pc::KS)).exp();
         let kf = (ln_kf0 + lnf(pc::KF)).exp();
@@ -273,27 +328,17 @@ impl Constants {
         let ln_from_sws = sws_to_total.ln();
         let ln_from_total = ln_from_sws - sws_to_total_0.ln();
 
-        let (ln_k1, ln_k2, ln_scale_k) = match m.k1k2 {
-            K1K2::Lueker2000 => {
-                let (a, b) = c::ln_k1k2_total_lueker2000(&x);
-                (a, b, ln_from_total)
-            }
-            K1K2::Sulpis2020 => {
-                let (a, b) = c::ln_k1k2_total_sulpis2020(&x);
-                (a, b, ln_from_total)
-            }
-            K1K2::Millero2010 => {
-                let (a, b) = c::ln_k1k2_sws_millero2010(&x);
-                (a, b, ln_from_sws)
-            }
-            K1K2::WatersMilleroWoosley2014 => {
-                let (a, b) = c::ln_k1k2_sws_wmw2014(&x);
-                (a, b, ln_from_sws)
-            }
-            K1K2::DicksonMillero1987 => {
-                let (a, b) = c::ln_k1k2_sws_dickson_millero1987(&x);
-                (a, b, ln_from_sws)
-            }
+        // A K1, K2 fit on the free scale is first taken to the seawater scale at one
+        // atmosphere, [H]SWS = [H]F·(1 + ST/KS + FT/KF).
+        let ln_from_free = (1.0 + st / ks0 + ft / kf0).ln() + ln_from_sws;
+        let k1k2 = m.k1k2.entry();
+        let (ln_k1, ln_k2) = (k1k2.function)(&x);
+        let ln_scale_k = match k1k2.native_scale {
+            Some(scales::PhScale::Seawater) => ln_from_sws,
+            Some(scales::PhScale::Free) => ln_from_free,
+            // Every K1, K2 entry names its scale (a catalogue test checks it); total
+            // otherwise.
+            _ => ln_from_total,
         };
         let (ln_k1p, ln_k2p, ln_k3p) = c::ln_kp_sws_millero1995(&x);
 

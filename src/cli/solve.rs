@@ -104,7 +104,7 @@ macro_rules! parse_arg {
         impl std::str::FromStr for $name {
             type Err = String;
             fn from_str(s: &str) -> Result<Self, String> {
-                s.parse::<$inner>().map($name)
+                s.parse::<$inner>().map($name).map_err(|e| e.to_string())
             }
         }
     };

@@ -9,6 +9,8 @@ use std::path::PathBuf;
 
 use serde::{Deserialize, Serialize};
 
+use crate::chem::catalogue::MethodKind;
+
 /// The whole site file.
 #[derive(Clone, Debug, Deserialize, Serialize, PartialEq)]
 #[serde(deny_unknown_fields)]
@@ -487,13 +489,13 @@ pub struct ChemistrySpec {
     pub kf: Option<serde::de::IgnoredAny>,
 }
 fn default_carbonic_acid() -> String {
-    "lueker2000".to_string()
+    MethodKind::CarbonicAcid.default_id().to_string()
 }
 fn default_total_boron() -> String {
-    "lee2010".to_string()
+    MethodKind::TotalBoron.default_id().to_string()
 }
 fn default_hydrogen_fluoride() -> String {
-    "pf87".to_string()
+    MethodKind::HydrogenFluoride.default_id().to_string()
 }
 impl Default for ChemistrySpec {
     fn default() -> Self {

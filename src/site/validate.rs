@@ -9,6 +9,7 @@ use chrono::FixedOffset;
 use super::dates::parse_offset;
 use super::schema::{MONTH_NAMES, MonthRef, Season, SiteFile, calendar_seasons, month_from_name};
 use super::spans::{SourceMap, did_you_mean};
+use crate::chem::catalogue::{MethodKind, UnknownMethod};
 use crate::chem::{BoronTotal, K1K2, KfSource, MethodSet};
 use crate::diag::{Diagnostic, Diagnostics};
 
@@ -21,11 +22,6 @@ pub const SALINITY_RANGE: (f64, f64) = (0.0, 45.0);
 /// present rate) and at most 50, the outlook stage's bounds. Kinsey (1985, from memory) gives
 /// ≈10 for high-cover zones.
 pub const NET_CALCIFICATION_RANGE: (f64, f64) = (0.0, 50.0);
-
-/// Names accepted in `[chemistry]` (as defined by the chemistry module).
-pub const K1K2_NAMES: &[&str] = &["lueker2000", "millero2010", "wmw2014", "sulpis2020", "dm87"];
-pub const BORON_NAMES: &[&str] = &["lee2010", "uppstrom1974"];
-pub const KF_NAMES: &[&str] = &["pf87", "dr79"];
 
 /// What validation derives from a valid site file.
 #[derive(Clone, Debug)]
@@ -419,12 +415,13 @@ fn check_thresholds(c: &mut Checker<'_>, site: &SiteFile) {
 /// `[chemistry]`: the method set, with the former key names refused with their new names.
 fn check_chemistry(c: &mut Checker<'_>, site: &SiteFile) -> Option<MethodSet> {
     let ch = &site.chemistry;
-    for (old, new, set, example) in [
-        ("k1k2", "carbonic_acid", ch.k1k2.is_some(), "lueker2000"),
-        ("boron", "total_boron", ch.boron.is_some(), "lee2010"),
-        ("kf", "hydrogen_fluoride", ch.kf.is_some(), "pf87"),
+    for (old, kind, set) in [
+        ("k1k2", MethodKind::CarbonicAcid, ch.k1k2.is_some()),
+        ("boron", MethodKind::TotalBoron, ch.boron.is_some()),
+        ("kf", MethodKind::HydrogenFluoride, ch.kf.is_some()),
     ] {
         if set {
+            let (new, example) = (kind.site_key(), kind.default_id());
             c.error_at_key(
                 &format!("chemistry.{old}"),
                 format!("the key `{old}` in [chemistry] is now called `{new}`"),
@@ -434,15 +431,9 @@ fn check_chemistry(c: &mut Checker<'_>, site: &SiteFile) -> Option<MethodSet> {
             );
         }
     }
-    let k1k2 = parse_method::<K1K2>(c, "chemistry.carbonic_acid", &ch.carbonic_acid, K1K2_NAMES);
-    let boron =
-        parse_method::<BoronTotal>(c, "chemistry.total_boron", &ch.total_boron, BORON_NAMES);
-    let kf = parse_method::<KfSource>(
-        c,
-        "chemistry.hydrogen_fluoride",
-        &ch.hydrogen_fluoride,
-        KF_NAMES,
-    );
+    let k1k2 = parse_method::<K1K2>(c, &ch.carbonic_acid);
+    let boron = parse_method::<BoronTotal>(c, &ch.total_boron);
+    let kf = parse_method::<KfSource>(c, &ch.hydrogen_fluoride);
     Some(MethodSet {
         k1k2: k1k2?,
         boron: boron?,
@@ -494,21 +485,22 @@ fn check_scenarios(c: &mut Checker<'_>, site: &SiteFile, seasons: Option<&[Seaso
     }
 }
 
-fn parse_method<T: std::str::FromStr>(
+/// One `[chemistry]` value parsed through the chemistry module's catalogue, with its
+/// suggestion and the valid ids when unknown.
+fn parse_method<T: std::str::FromStr<Err = UnknownMethod>>(
     c: &mut Checker<'_>,
-    path: &str,
     value: &str,
-    names: &[&str],
 ) -> Option<T> {
     match value.parse::<T>() {
         Ok(v) => Some(v),
-        Err(_) => {
-            let list = names.join(", ");
-            let help = match did_you_mean(value, names.iter().copied()) {
+        Err(e) => {
+            let list = e.choices.join(", ");
+            let help = match e.suggestion {
                 Some(s) => format!("did you mean `{s}`? valid names: {list}"),
                 None => format!("valid names: {list}"),
             };
-            c.error(path, format!("unknown method `{value}`"), help);
+            let path = format!("chemistry.{}", e.kind.site_key());
+            c.error(&path, format!("unknown method `{value}`"), help);
             None
         }
     }
