@@ -1,7 +1,8 @@
-//! Bad site and record inputs, run through the built binary: each must exit with the input-error
-//! status,
-//! name the file, the line and the column or field, say what would be valid, write nothing
-//! and leave every input file as it was. Also `init` → fill in → `check`.
+//! `check --format json` on site and record inputs, run through the built binary: the
+//! structured output of a failing and of a passing site. The messages of bad site files and
+//! records (file, line, column, field, help) are checked in one place, the bad-input corpus
+//! `tests/bad_inputs/` (run by `tests/bad_inputs.rs`); `init` → fill in → `check` → `project`
+//! is in `tests/cli_demo.rs`.
 
 use std::collections::BTreeMap;
 use std::fs;
@@ -74,141 +75,6 @@ fn check_fails(site: &str, csv: &str) -> String {
 }
 
 #[test]
-fn toml_syntax_error() {
-    let e = check_fails(
-        &SITE.replace("latitude_deg = -8.0", "latitude_deg = = -8.0"),
-        CSV,
-    );
-    assert!(e.contains("error: TOML syntax error"), "{e}");
-    assert!(e.contains("--> site.toml:3:"), "{e}");
-}
-
-#[test]
-fn unknown_key_with_suggestion() {
-    let e = check_fails(&SITE.replace("longitude_deg", "longitud_deg"), CSV);
-    assert!(e.contains("unknown key `longitud_deg` in `site`"), "{e}");
-    assert!(
-        e.contains("--> site.toml:4:1, field `site.longitud_deg`"),
-        "{e}"
-    );
-    assert!(e.contains("did you mean `longitude_deg`?"), "{e}");
-}
-
-#[test]
-fn wrong_type() {
-    let e = check_fails(
-        &SITE.replace("depth_min_m = 1.0", "depth_min_m = true"),
-        CSV,
-    );
-    assert!(e.contains("wrong type: found boolean"), "{e}");
-    assert!(
-        e.contains("--> site.toml:5:15, field `site.depth_min_m`"),
-        "{e}"
-    );
-    assert!(e.contains("expected a number"), "{e}");
-}
-
-#[test]
-fn latitude_200() {
-    let e = check_fails(
-        &SITE.replace("latitude_deg = -8.0", "latitude_deg = 200"),
-        CSV,
-    );
-    assert!(
-        e.contains("--> site.toml:3:16, field `site.latitude_deg`"),
-        "{e}"
-    );
-    assert!(e.contains("3 | latitude_deg = 200"), "{e}");
-    assert!(
-        e.contains("latitude must be between -90 and 90 degrees"),
-        "{e}"
-    );
-}
-
-#[test]
-fn negative_depth() {
-    let e = check_fails(
-        &SITE.replace("depth_max_m = 5.0", "depth_max_m = -5.0"),
-        CSV,
-    );
-    assert!(
-        e.contains("--> site.toml:6:15, field `site.depth_max_m`"),
-        "{e}"
-    );
-    assert!(
-        e.contains("depth_max_m must be between 0 and 1000 m"),
-        "{e}"
-    );
-}
-
-#[test]
-fn missing_record_file() {
-    let e = check_fails(&SITE.replace("bottles.csv", "missing.csv"), CSV);
-    assert!(
-        e.contains("record file `missing.csv` does not exist"),
-        "{e}"
-    );
-    assert!(
-        e.contains("--> site.toml:10:8, field `records[0].path`"),
-        "{e}"
-    );
-    assert!(
-        e.contains("paths are relative to the folder of the site file"),
-        "{e}"
-    );
-}
-
-#[test]
-fn missing_mapped_column() {
-    let site = format!("{SITE}\n[records.columns]\ndic = \"DIC_umol_kg\"\n");
-    let e = check_fails(&site, CSV);
-    assert!(
-        e.contains("column `DIC_umol_kg` (mapped to `dic` in the site file) is not in the header"),
-        "{e}"
-    );
-    assert!(
-        e.contains("--> bottles.csv:1, field `records[0].columns.dic`"),
-        "{e}"
-    );
-    assert!(
-        e.contains("1 | date,station,temp_c,salinity,depth_m,ta,dic"),
-        "{e}"
-    );
-    assert!(e.contains("did you mean `dic`?"), "{e}");
-}
-
-#[test]
-fn non_numeric_cell() {
-    let e = check_fails(SITE, &CSV.replace("35.3", "thirty-five"));
-    assert!(e.contains("error: `thirty-five` is not a number"), "{e}");
-    assert!(e.contains("--> bottles.csv:3:19, field `salinity`"), "{e}");
-    assert!(e.contains("expected a number such as 2301.5"), "{e}");
-}
-
-#[test]
-fn impossible_date() {
-    let e = check_fails(SITE, &CSV.replace("2024-01-11", "2024-02-30"));
-    assert!(
-        e.contains("`2024-02-30` is not a calendar date: February 2024 has 29 days"),
-        "{e}"
-    );
-    assert!(e.contains("--> bottles.csv:3:1, field `date`"), "{e}");
-    assert!(e.contains("the day must be between 1 and 29"), "{e}");
-}
-
-#[test]
-fn unknown_unit() {
-    let site = format!("{SITE}\n[records.units]\ndic = \"mol/m3\"\n");
-    let e = check_fails(&site, CSV);
-    assert!(e.contains("unknown value \"mol/m3\""), "{e}");
-    assert!(
-        e.contains("--> site.toml:14:7, field `records[0].units.dic`"),
-        "{e}"
-    );
-    assert!(e.contains("`umol/kg`") && e.contains("`mmol/kg`"), "{e}");
-}
-
-#[test]
 fn every_row_error_is_listed_and_json_reports_them() {
     let csv = CSV
         .replace("27.0", "n/d")
@@ -236,6 +102,16 @@ fn every_row_error_is_listed_and_json_reports_them() {
         diags.iter().any(|d| d["line"] == 4 && d["field"] == "date"),
         "{v}"
     );
+    // The typed findings: one per row, with kind, line, cell and field as fields.
+    let findings = v["findings"].as_array().cloned().unwrap_or_default();
+    assert_eq!(findings.len(), 2, "{v}");
+    assert_eq!(findings[0]["kind"], "non-numeric", "{v}");
+    assert_eq!(findings[0]["line"], 2, "{v}");
+    assert_eq!(findings[0]["cell"], 2, "{v}");
+    assert_eq!(findings[0]["field"], "temp_c", "{v}");
+    assert_eq!(findings[1]["kind"], "bad-date", "{v}");
+    assert_eq!(findings[1]["line"], 4, "{v}");
+    assert_eq!(findings[1]["severity"], "error", "{v}");
 }
 
 #[test]
@@ -261,62 +137,4 @@ fn good_site_passes_in_text_and_json() {
     assert_eq!(v["status"], "ok");
     assert_eq!(v["site"]["baseline"]["whole_record"]["n_solved"], 3);
     assert_eq!(snapshot(dir.path()), before);
-}
-
-#[test]
-fn init_then_fill_in_then_check() {
-    let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
-    let target = dir.path().join("new-site");
-    let out = run(&["init", "new-site"], dir.path());
-    assert_eq!(
-        out.status.code(),
-        Some(EXIT_OK),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let site = target.join("site.toml");
-    let csv = target.join("records.csv");
-    assert!(site.is_file() && csv.is_file());
-
-    // The untouched template has no data rows yet: check says so and fails.
-    let out = run(&["check", "new-site/site.toml"], dir.path());
-    assert_eq!(out.status.code(), Some(EXIT_INPUT));
-    assert!(String::from_utf8_lossy(&out.stderr).contains("has no data rows"));
-
-    // A second init refuses and leaves the files alone.
-    let before = snapshot(&target);
-    let out = run(&["init", "new-site"], dir.path());
-    assert_eq!(out.status.code(), Some(EXIT_INPUT));
-    assert!(String::from_utf8_lossy(&out.stderr).contains("already exists"));
-    assert_eq!(snapshot(&target), before);
-
-    // Fill in real numbers under the template header: check accepts it.
-    let mut text = fs::read_to_string(&csv).unwrap_or_default();
-    text.push_str("2024-03-01,S1,3,28.1,35.2,2350,2010,,,1.2,0.15\n");
-    text.push_str("2024-03-02,S1,3,28.2,35.2,2351,2011,,,1.1,0.14\n");
-    text.push_str("2024-03-03,S1,3,28.0,35.3,2352,2012,,,1.0,0.16\n");
-    fs::write(&csv, text).unwrap_or_else(|e| panic!("{e}"));
-    let out = run(&["check", "new-site/site.toml"], dir.path());
-    assert_eq!(
-        out.status.code(),
-        Some(EXIT_OK),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-}
-
-#[test]
-fn projection_settings_the_outlook_refuses_are_caught_by_check() {
-    let site =
-        format!("{SITE}\n[calcification]\nrelationships = [\"chan2013\", \"silvermann2009\"]\n");
-    let e = check_fails(&site, CSV);
-    assert!(
-        e.contains("unknown calcification relationship \"silvermann2009\""),
-        "{e}"
-    );
-    assert!(
-        e.contains("--> site.toml:14:30, field `calcification.relationships[1]`"),
-        "{e}"
-    );
-    assert!(e.contains("silverman2009"), "{e}");
 }

@@ -203,14 +203,64 @@ fn completions_are_printed() {
     assert!(String::from_utf8_lossy(&out.stdout).contains("calcisite"));
 }
 
+/// `init`, then the templates filled in the way a user would (invented site values and one
+/// invented bottle sample per fortnight for a year), then `check` and `project` both accept
+/// the site and agree on the number of rows used. The numbers are invented: open-ocean
+/// surface water near TA 2300, DIC 2000 µmol/kg (common practice for tropical surface water).
 #[test]
-fn init_then_check_is_usable_once_filled() {
+fn init_fill_in_check_and_project() {
     let dir = tempfile::tempdir().unwrap();
     let target = dir.path().join("new-site");
     let out = run(bin().arg("init").arg(&target));
     assert_ok(&out, "init");
-    assert!(target.join("site.toml").exists());
-    // A second init refuses to overwrite.
+    let site = target.join("site.toml");
+    let csv = target.join("records.csv");
+    // A second init refuses to overwrite and changes nothing.
+    let before = std::fs::read(&site).unwrap();
     let again = run(bin().arg("init").arg(&target));
     assert_eq!(again.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&again.stderr).contains("already exists"));
+    assert_eq!(std::fs::read(&site).unwrap(), before);
+
+    // Fill in the site values (invented) ...
+    let text = std::fs::read_to_string(&site).unwrap();
+    let text = text
+        .replace("name = \"Candidate site\"", "name = \"Invented bay\"")
+        .replace("latitude_deg = 0.0", "latitude_deg = -17.5")
+        .replace("longitude_deg = 0.0", "longitude_deg = 177.2")
+        .replace("utc_offset = \"+00:00\"", "utc_offset = \"+12:00\"");
+    std::fs::write(&site, text).unwrap();
+    // ... and 24 invented samples, two per month, with a seasonal temperature cycle.
+    let mut rows = std::fs::read_to_string(&csv).unwrap();
+    for i in 0..24 {
+        let month = i / 2 + 1;
+        let day = 5 + 14 * (i % 2);
+        let temp = 26.0 + 2.0 * (f64::from(month) * 0.52).cos();
+        let ta = 2300.0 + f64::from(i % 3);
+        let dic = 1995.0 + f64::from(i % 5);
+        rows.push_str(&format!(
+            "2024-{month:02}-{day:02},S1,4,{temp:.1},35.1,{ta:.1},{dic:.1},,,1.0,0.1\n"
+        ));
+    }
+    std::fs::write(&csv, rows).unwrap();
+
+    let out = run(bin().arg("check").arg(&site));
+    assert_ok(&out, "check of the filled-in template");
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("Site: Invented bay"), "{text}");
+    assert!(text.contains("TA+DIC 24"), "{text}");
+
+    let outlook = dir.path().join("outlook.csv");
+    let out = run(bin()
+        .arg("project")
+        .arg(&site)
+        .args(["--members", "20", "-o"])
+        .arg(&outlook));
+    assert_ok(&out, "project of the filled-in template");
+    let table = std::fs::read_to_string(&outlook).unwrap();
+    assert!(
+        table.starts_with("pathway,scenario,year,season,quantity"),
+        "{table}"
+    );
+    assert!(table.lines().count() > 100, "{table}");
 }

@@ -112,7 +112,8 @@ fn load_and_render(site: &Path) -> Result<Option<LoadedSite>, TestCaseError> {
             let _ = serde_json::to_string(&loaded);
             Ok(Some(loaded))
         }
-        Err(diags) => {
+        Err(fail) => {
+            let diags = fail.to_diagnostics();
             prop_assert!(
                 diags.has_errors(),
                 "load_site failed without an error:\n{}",
@@ -209,9 +210,9 @@ const KEYS: &[&str] = &[
     "omega_ar_optimal_min",
     "omega_ar_adequate_min",
     "omega_ar_marginal_min",
-    "k1k2",
-    "boron",
-    "kf",
+    "carbonic_acid",
+    "total_boron",
+    "hydrogen_fluoride",
     "ta_offset_umol_kg",
     "dic_offset_umol_kg",
     "seasons",

@@ -3,15 +3,17 @@
 //! findings to standard error. Exit status [`EXIT_OK`] when the site is usable (warnings
 //! allowed), [`EXIT_INPUT`] when any input error was found (every error is listed).
 
+use std::collections::{BTreeMap, BTreeSet, HashMap};
 use std::fmt::Write as _;
-use std::path::PathBuf;
+use std::io::{BufRead, BufReader};
+use std::path::{Path, PathBuf};
 
 use serde::Serialize;
 
 use super::{EXIT_INPUT, EXIT_OK};
-use crate::diag::{Diagnostics, colour_wanted};
+use crate::diag::{Diagnostic, Diagnostics, Severity, colour_wanted};
 use crate::site::baseline::{Stats, TaModelKind};
-use crate::site::{LoadedSite, load_site};
+use crate::site::{Finding, FindingKind, LoadFailure, LoadedSite, load_site};
 
 /// Output format of `check`.
 #[derive(clap::ValueEnum, Clone, Copy, Debug, Default, PartialEq, Eq)]
@@ -42,11 +44,14 @@ struct JsonOut<'a> {
     #[serde(skip_serializing_if = "Option::is_none")]
     site: Option<&'a LoadedSite>,
     diagnostics: &'a Diagnostics,
+    /// The row findings, typed (one per row, not grouped).
+    findings: &'a [Finding],
 }
 
 /// Runs `check`; returns the exit status.
 pub fn run_check(args: &CheckArgs) -> i32 {
     let colour = colour_wanted(false);
+    let verbose = crate::diag::verbose();
     let loaded = load_site(&args.site).and_then(|site| {
         // The projection settings are checked here too, so that `check` passing means
         // `project` and `report` accept the site file.
@@ -54,32 +59,41 @@ pub fn run_check(args: &CheckArgs) -> i32 {
             Ok(_) => Ok(site),
             Err(ds) => {
                 let mut all: Diagnostics = ds.into_iter().map(|d| site.locate(d)).collect();
+                let position = all.len();
                 all.extend(site.findings.iter().cloned());
-                Err(all)
+                Err(LoadFailure {
+                    diagnostics: all,
+                    rows: site.qc,
+                    rows_position: position + site.qc_position,
+                })
             }
         }
     });
     match loaded {
         Ok(site) => {
+            let shown = site_diagnostics(&site, verbose);
             let printed = match args.format {
                 CheckFormat::Text => super::print_out(&summary_text(&site)),
                 CheckFormat::Json => print_json(&JsonOut {
                     status: "ok",
                     site: Some(&site),
-                    diagnostics: &site.findings,
+                    diagnostics: &shown,
+                    findings: &site.qc,
                 }),
             };
-            if !site.findings.is_empty() {
-                eprint!("{}", site.findings.render(colour));
+            if !shown.is_empty() {
+                eprint!("{}", shown.render(colour));
             }
             if printed { EXIT_OK } else { EXIT_INPUT }
         }
-        Err(diags) => {
+        Err(fail) => {
+            let diags = failure_diagnostics(&fail, verbose);
             if args.format == CheckFormat::Json {
                 print_json(&JsonOut {
                     status: "error",
                     site: None,
                     diagnostics: &diags,
+                    findings: &fail.rows,
                 });
             }
             eprint!("{}", diags.render(colour));
@@ -89,6 +103,188 @@ pub fn run_check(args: &CheckArgs) -> i32 {
             );
             EXIT_INPUT
         }
+    }
+}
+
+/// Row findings of one kind in one file shown in full before the rest are summarised (all
+/// of them with `--verbose`).
+pub const SHOWN_PER_GROUP: usize = 10;
+
+/// Every finding of a loaded site as `check` shows it: site-level diagnostics with the row
+/// findings grouped among them.
+pub fn site_diagnostics(ls: &LoadedSite, verbose: bool) -> Diagnostics {
+    merge(&ls.findings, &ls.qc, ls.qc_position, verbose)
+}
+
+/// Every finding of a failed load as `check` shows it.
+pub fn failure_diagnostics(f: &LoadFailure, verbose: bool) -> Diagnostics {
+    merge(&f.diagnostics, &f.rows, f.rows_position, verbose)
+}
+
+fn merge(site: &Diagnostics, rows: &[Finding], at: usize, verbose: bool) -> Diagnostics {
+    let (before, after) = site.as_slice().split_at(at.min(site.len()));
+    let mut out = Diagnostics::new();
+    out.extend(before.iter().cloned());
+    out.extend(group_rows(rows, verbose));
+    out.extend(after.iter().cloned());
+    out
+}
+
+/// Row findings as diagnostics: in the order given (severity, file, line); at most
+/// [`SHOWN_PER_GROUP`] per (file, kind, field, severity) in full, with the offending line and
+/// a caret under the cell; the rest as one diagnostic listing every line.
+fn group_rows(findings: &[Finding], verbose: bool) -> Diagnostics {
+    type Key<'a> = (Severity, usize, FindingKind, Option<&'a str>);
+    let mut groups: Vec<(Vec<&Finding>, Vec<usize>)> = Vec::new();
+    let mut index: HashMap<Key<'_>, usize> = HashMap::new();
+    for f in findings {
+        let key = (f.severity, f.file_index, f.kind, f.field.as_deref());
+        let gi = *index.entry(key).or_insert_with(|| {
+            groups.push((Vec::new(), Vec::new()));
+            groups.len() - 1
+        });
+        if let Some((shown, rest)) = groups.get_mut(gi) {
+            if verbose || shown.len() < SHOWN_PER_GROUP {
+                shown.push(f);
+            } else {
+                rest.push(f.line);
+            }
+        }
+    }
+    // Source lines needed for snippets, read once per file.
+    let mut wanted: BTreeMap<usize, (&Path, BTreeSet<usize>)> = BTreeMap::new();
+    for (shown, _) in &groups {
+        for f in shown.iter().filter(|f| f.line > 0) {
+            wanted
+                .entry(f.file_index)
+                .or_insert_with(|| (&*f.file, BTreeSet::new()))
+                .1
+                .insert(f.line);
+        }
+    }
+    let texts = read_lines(&wanted);
+    let mut out = Diagnostics::new();
+    for (shown, rest) in groups {
+        let Some(first) = shown.first().copied() else {
+            continue;
+        };
+        for f in shown {
+            let mut d = f.to_diagnostic();
+            if let Some(text) = texts.get(&(f.file_index, f.line)) {
+                if let Some((col, width)) = f.cell.and_then(|c| cell_position(text, c)) {
+                    d = d.with_column(col).with_width(width);
+                }
+                d = d.with_snippet(text.clone());
+            }
+            out.push(d);
+        }
+        if !rest.is_empty() {
+            let mut d = Diagnostic::new(
+                first.severity,
+                format!(
+                    "{} more {} like the one above ({}) on lines {}",
+                    rest.len(),
+                    if rest.len() == 1 { "row" } else { "rows" },
+                    first.kind.as_str(),
+                    line_ranges(&rest)
+                ),
+            )
+            .with_file(&*first.file);
+            if let Some(field) = &first.field {
+                d = d.with_field(field.clone());
+            }
+            out.push(d);
+        }
+    }
+    out
+}
+
+fn read_lines(
+    wanted: &BTreeMap<usize, (&Path, BTreeSet<usize>)>,
+) -> HashMap<(usize, usize), String> {
+    let mut out = HashMap::new();
+    for (&fi, (path, lines)) in wanted {
+        let Some(&last) = lines.last() else {
+            continue;
+        };
+        let Ok(f) = std::fs::File::open(path) else {
+            continue;
+        };
+        let mut r = BufReader::new(f);
+        let mut buf = Vec::new();
+        let mut n = 0;
+        while n < last {
+            buf.clear();
+            match r.read_until(b'\n', &mut buf) {
+                Ok(0) | Err(_) => break,
+                Ok(_) => {}
+            }
+            n += 1;
+            if lines.contains(&n) {
+                let s = String::from_utf8_lossy(&buf);
+                let s = s
+                    .trim_end_matches(['\n', '\r'])
+                    .trim_start_matches('\u{feff}');
+                out.insert((fi, n), s.to_string());
+            }
+        }
+    }
+    out
+}
+
+/// 1-based character column and width of the `idx`-th comma-separated cell of `line`
+/// (quote-aware).
+fn cell_position(line: &str, idx: usize) -> Option<(usize, usize)> {
+    let mut cell = 0;
+    let mut start = 0usize; // char index of current cell start
+    let mut in_quotes = false;
+    let mut pos = 0usize;
+    for c in line.chars() {
+        match c {
+            '"' => in_quotes = !in_quotes,
+            ',' if !in_quotes => {
+                if cell == idx {
+                    return Some((start + 1, (pos - start).max(1)));
+                }
+                cell += 1;
+                start = pos + 1;
+            }
+            _ => {}
+        }
+        pos += 1;
+    }
+    (cell == idx).then(|| (start + 1, (pos - start).max(1)))
+}
+
+/// `3, 5–9, 12` from a list of line numbers; very long lists are cut after 100 ranges with
+/// the count of the rest.
+fn line_ranges(lines: &[usize]) -> String {
+    let mut v = lines.to_vec();
+    v.sort_unstable();
+    v.dedup();
+    let mut parts = Vec::new();
+    let mut i = 0;
+    while i < v.len() {
+        let a = v[i];
+        let mut b = a;
+        while i + 1 < v.len() && v[i + 1] == b + 1 {
+            i += 1;
+            b = v[i];
+        }
+        parts.push(if a == b {
+            a.to_string()
+        } else {
+            format!("{a}–{b}")
+        });
+        i += 1;
+    }
+    const MAX_RANGES: usize = 100;
+    if parts.len() > MAX_RANGES {
+        let more: usize = parts.len() - MAX_RANGES;
+        parts.truncate(MAX_RANGES);
+        format!("{} and {more} further ranges", parts.join(", "))
+    } else {
+        parts.join(", ")
     }
 }
 
@@ -380,9 +576,9 @@ pub fn summary_text(ls: &LoadedSite) -> String {
             .unwrap_or_default()
     );
     let (e, wn, n) = (
-        ls.findings.count(crate::diag::Severity::Error),
-        ls.findings.count(crate::diag::Severity::Warning),
-        ls.findings.count(crate::diag::Severity::Note),
+        ls.count(Severity::Error),
+        ls.count(Severity::Warning),
+        ls.count(Severity::Note),
     );
     let _ = writeln!(
         o,
@@ -393,4 +589,26 @@ pub fn summary_text(ls: &LoadedSite) -> String {
         "Screening-level estimate, not a permit determination; biological and local factors are not modelled."
     );
     o
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn ranges_compress_and_cut() {
+        assert_eq!(line_ranges(&[9, 3, 5, 6, 7, 12]), "3, 5–7, 9, 12");
+        let many: Vec<usize> = (0..500).map(|i| i * 2).collect();
+        let s = line_ranges(&many);
+        assert!(s.ends_with("and 400 further ranges"), "{s}");
+    }
+
+    #[test]
+    fn cell_positions_respect_quotes() {
+        let line = "2024-01-01,\"a,b\",8.1x,35";
+        assert_eq!(cell_position(line, 0), Some((1, 10)));
+        assert_eq!(cell_position(line, 2), Some((18, 4)));
+        assert_eq!(cell_position(line, 3), Some((23, 2)));
+        assert_eq!(cell_position(line, 4), None);
+    }
 }

@@ -90,7 +90,8 @@ pub fn load_and_project(
     let colour = colour_wanted(false);
     let loaded = match load_site(path) {
         Ok(l) => l,
-        Err(diags) => {
+        Err(fail) => {
+            let diags = super::check::failure_diagnostics(&fail, crate::diag::verbose());
             eprint!("{}", diags.render(colour));
             eprintln!(
                 "{}: the site cannot be projected until the errors above are fixed",
@@ -99,12 +100,13 @@ pub fn load_and_project(
             return Err(EXIT_INPUT);
         }
     };
-    if !loaded.findings.is_empty() && !crate::diag::quiet() {
+    if (!loaded.findings.is_empty() || !loaded.qc.is_empty()) && !crate::diag::quiet() {
         if all_findings || crate::diag::verbose() {
-            eprint!("{}", loaded.findings.render(colour));
+            let shown = super::check::site_diagnostics(&loaded, crate::diag::verbose());
+            eprint!("{}", shown.render(colour));
         } else {
-            let w = loaded.findings.count(crate::diag::Severity::Warning);
-            let n = loaded.findings.count(crate::diag::Severity::Note);
+            let w = loaded.count(crate::diag::Severity::Warning);
+            let n = loaded.count(crate::diag::Severity::Note);
             eprintln!(
                 "{}: {w} warning(s), {n} note(s); `calcisite check {}` lists them",
                 path.display(),

@@ -14,13 +14,12 @@ use crate::chem::Input;
 use crate::diag::{Diagnostic, Diagnostics};
 use crate::site::{LoadedSite, Pair, Sample, schema};
 
-use super::calcification::CalcificationSettings;
 use super::ensemble::{EnsembleSettings, MeasurementUncertainty};
-use super::pathways::{Observed, Pathway};
+use super::pathways::Observed;
 use super::projection::{Disequilibrium, Measurement, ProjectionRecord};
 use super::scenario::{LocalScenario, Offsets};
 use super::thresholds::{HabitatClasses, guinotte_2003};
-use super::{PathwaySpec, ProjectionSettings, SiteInput};
+use super::{ProjectionSettings, SiteInput};
 
 /// The outlook's inputs for a loaded site, or diagnostics naming the site file and field.
 pub fn from_loaded_site(
@@ -55,7 +54,6 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
         Diagnostics::from(d)
     };
     let site_file = &loaded.site;
-    let observed = Observed::noaa();
 
     if !loaded.samples.iter().any(|smp| smp.state.is_some()) {
         return Err(err(
@@ -65,65 +63,10 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
         ));
     }
 
-    // Pathways.
+    // Pathways, horizon years, ensemble size and calcification ids: checked once, each
+    // problem at its key of the site file.
+    let specs = super::site_specs::check_specs(loaded)?;
     let pr = &site_file.projection;
-    let mut pathways = Vec::with_capacity(pr.pathways.len());
-    for (i, name) in pr.pathways.iter().enumerate() {
-        let field = format!("projection.pathways[{i}]");
-        let pathway = match pr
-            .user_pathways
-            .iter()
-            .enumerate()
-            .find(|(_, u)| &u.name == name)
-        {
-            Some((ui, u)) => {
-                let mut points = Vec::with_capacity(u.points.len());
-                for (j, [y, ppm]) in u.points.iter().enumerate() {
-                    if !y.is_finite() || y.fract() != 0.0 || y.abs() > 1e6 {
-                        return Err(err(
-                            &format!("projection.user_pathways[{ui}].points[{j}]"),
-                            format!("year {y} is not a whole year"),
-                            "each point is [year, ppm]",
-                        ));
-                    }
-                    points.push((*y as i32, *ppm));
-                }
-                Pathway::user(name, &points).map_err(|e| {
-                    err(
-                        &format!("projection.user_pathways[{ui}]"),
-                        e.to_string(),
-                        "the outlook accepts whole years 1850-2500 and 150-3000 ppm",
-                    )
-                })?
-            }
-            None => Pathway::builtin(name).map_err(|e| err(&field, e.to_string(), ""))?,
-        };
-        pathways.push(PathwaySpec::with_default_warming(pathway, &observed));
-    }
-
-    // Horizon years.
-    let years = pr.horizon_years_or_default(loaded.last_sample_year());
-    if years.is_empty() {
-        return Err(err(
-            "projection.horizon_years",
-            format!(
-                "no horizon years after the last sample ({})",
-                loaded.last_sample_year()
-            ),
-            "list years explicitly, e.g. horizon_years = [2030, 2050, 2100]",
-        ));
-    }
-    if pr.members > super::ensemble::MAX_MEMBERS {
-        return Err(err(
-            "projection.members",
-            format!(
-                "{} ensemble members exceed the outlook's limit of {}",
-                pr.members,
-                super::ensemble::MAX_MEMBERS
-            ),
-            "1000 members give stable 5-95 % quantiles",
-        ));
-    }
 
     // Uncertainty, thresholds, calcification, scenarios.
     let u = &site_file.uncertainty;
@@ -155,31 +98,6 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
         )
         .map_err(|e| err("thresholds", e.to_string(), ""))?
     };
-    let (rate, rate_source) = site_file.baseline.net_calcification();
-    let calcification = CalcificationSettings::from_site(
-        Some(rate),
-        Some(&rate_source),
-        &site_file.calcification.relationships,
-    )
-    .map_err(|m| {
-        // Point at the unknown id itself, with the closest known one.
-        let ids = &site_file.calcification.relationships;
-        let known: Vec<&str> = super::calcification::builtin_relationships()
-            .iter()
-            .map(|r| r.id)
-            .collect();
-        let bad = ids.iter().position(|id| !known.contains(&id.trim()));
-        let field = bad.map_or_else(
-            || "calcification".to_string(),
-            |i| format!("calcification.relationships[{i}]"),
-        );
-        let hint = bad
-            .and_then(|i| ids.get(i))
-            .and_then(|id| crate::site::spans::did_you_mean(id.trim(), known.iter().copied()))
-            .map(|s| format!("did you mean `{s}`? "))
-            .unwrap_or_default();
-        err(&field, m, &format!("{hint}known ids: {}", known.join(", ")))
-    })?;
     let scenarios = site_file
         .scenario
         .iter()
@@ -206,9 +124,9 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
         .collect();
 
     let settings = ProjectionSettings {
-        pathways,
+        pathways: specs.pathways,
         warming: pr.warming,
-        years,
+        years: specs.years,
         mode: match pr.disequilibrium {
             schema::Disequilibrium::Ratio => Disequilibrium::Ratio,
             schema::Disequilibrium::Additive => Disequilibrium::Additive,
@@ -216,7 +134,7 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
         scenarios,
         ensemble,
         classes,
-        calcification,
+        calcification: specs.calcification,
     };
     Ok(settings)
 }
@@ -354,14 +272,16 @@ mod tests {
             "[projection]\npathways = [\"far\"]\n\
              [[projection.user_pathways]]\nname = \"far\"\npoints = [[2030, 450.0], [2100, 4000.0]]\n",
         );
-        // The site check applies the outlook's own pathway limits (150–3000 ppm), so the
-        // site already fails to load, naming the field.
-        let e = load_site(&path).unwrap_err().render(false);
+        // The site keeps pathways as written; the outlook checks them against its own limits
+        // (150–3000 ppm) and names the field, file, line and column.
+        let loaded = load_site(&path).map_err(|d| d.render(false)).unwrap();
+        let e = from_loaded_site(&loaded).unwrap_err().render(false);
         assert!(
-            e.contains("projection.user_pathways[0]") && e.contains("4000"),
+            e.contains("CO2 4000 ppm is outside the valid range")
+                && e.contains("field `projection.user_pathways[0].points[1]`"),
             "{e}"
         );
-        assert!(e.contains("site.toml"), "{e}");
+        assert!(e.contains("site.toml:"), "{e}");
         // Settings the site check leaves to the outlook are still named by field.
         let path = write_site(dir.path(), "[projection]\nmembers = 200000\n");
         let loaded = load_site(&path).map_err(|d| d.render(false)).unwrap();

@@ -20,6 +20,7 @@ pub mod pathways;
 pub mod projection;
 pub mod rng;
 pub mod scenario;
+pub mod site_specs;
 pub mod thermal;
 pub mod thresholds;
 pub mod warming;

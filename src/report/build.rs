@@ -303,9 +303,10 @@ fn months_text(months: &[u32]) -> String {
 }
 
 /// Findings grouped by kind: the first message of each group stands for it, with the number of
-/// rows and, per file, their line numbers (runs of consecutive lines shortened). The site
-/// stage's own summaries ("275 more rows like the one above (kind) on lines …") are folded
-/// into the group they continue, so a long sensor series gives one line per kind of finding.
+/// rows and, per file, their line numbers (runs of consecutive lines shortened). Site-level
+/// findings group by their message with the numbers masked; typed row findings
+/// (`LoadedSite::qc`) group by severity, kind and field, so a long sensor series gives one
+/// line per kind of finding.
 fn grouped_findings(loaded: &LoadedSite) -> Vec<QcFinding> {
     struct Group {
         key: String,
@@ -315,36 +316,25 @@ fn grouped_findings(loaded: &LoadedSite) -> Vec<QcFinding> {
         files: Vec<(Option<String>, Vec<usize>)>,
         count: usize,
     }
-    let mut groups: Vec<Group> = Vec::new();
-    let mut last_group: Option<usize> = None;
-    for d in loaded.findings.iter() {
-        let level = match d.severity {
+    fn add(
+        groups: &mut Vec<Group>,
+        key: String,
+        severity: crate::diag::Severity,
+        message: &str,
+        file: Option<String>,
+        line: Option<usize>,
+    ) {
+        let level = match severity {
             crate::diag::Severity::Error | crate::diag::Severity::Warning => QcLevel::Warning,
             crate::diag::Severity::Note => QcLevel::Note,
         };
-        let file = d.file.as_deref().map(display_path);
-        if let Some((more, lines)) = parse_more_rows(&d.message)
-            && let Some(g) = last_group.and_then(|i| groups.get_mut(i))
-        {
-            g.count += more;
-            match g.files.iter_mut().find(|(f, _)| *f == file) {
-                Some((_, l)) => l.extend(lines),
-                None => g.files.push((file, lines)),
-            }
-            continue;
-        }
-        let key: String = d
-            .message
-            .chars()
-            .map(|c| if c.is_ascii_digit() { '#' } else { c })
-            .collect();
         let i = match groups.iter().position(|g| g.key == key) {
             Some(i) => i,
             None => {
                 groups.push(Group {
                     key,
                     level,
-                    message: d.message.clone(),
+                    message: message.to_string(),
                     files: Vec::new(),
                     count: 0,
                 });
@@ -354,12 +344,44 @@ fn grouped_findings(loaded: &LoadedSite) -> Vec<QcFinding> {
         if let Some(g) = groups.get_mut(i) {
             g.count += 1;
             match g.files.iter_mut().find(|(f, _)| *f == file) {
-                Some((_, l)) => l.extend(d.line),
-                None => g.files.push((file, d.line.into_iter().collect())),
+                Some((_, l)) => l.extend(line),
+                None => g.files.push((file, line.into_iter().collect())),
             }
         }
-        last_group = Some(i);
     }
+    let mut groups: Vec<Group> = Vec::new();
+    let site = loaded.findings.as_slice();
+    let (before, after) = site.split_at(loaded.qc_position.min(site.len()));
+    let site_level = |groups: &mut Vec<Group>, ds: &[crate::diag::Diagnostic]| {
+        for d in ds {
+            let key: String = d
+                .message
+                .chars()
+                .map(|c| if c.is_ascii_digit() { '#' } else { c })
+                .collect();
+            let file = d.file.as_deref().map(display_path);
+            add(groups, key, d.severity, &d.message, file, d.line);
+        }
+    };
+    site_level(&mut groups, before);
+    for f in &loaded.qc {
+        let key = format!(
+            "row:{:?}:{}:{}",
+            f.severity,
+            f.kind.as_str(),
+            f.field.as_deref().unwrap_or("")
+        );
+        let line = (f.line > 0).then_some(f.line);
+        add(
+            &mut groups,
+            key,
+            f.severity,
+            &f.message,
+            Some(display_path(&f.file)),
+            line,
+        );
+    }
+    site_level(&mut groups, after);
     groups
         .into_iter()
         .map(|g| {
@@ -390,32 +412,6 @@ fn grouped_findings(loaded: &LoadedSite) -> Vec<QcFinding> {
             }
         })
         .collect()
-}
-
-/// Reads the site stage's summary line "N more rows like the one above (kind) on lines a–b, c"
-/// (see `site::qc`): the count and the lines it lists (a trailing "and K further ranges" is
-/// counted but its lines are not known).
-fn parse_more_rows(message: &str) -> Option<(usize, Vec<usize>)> {
-    let (count, rest) = message.split_once(" more ")?;
-    let count: usize = count.trim().parse().ok()?;
-    if !(rest.starts_with("rows like the one above") || rest.starts_with("row like the one above"))
-    {
-        return None;
-    }
-    let (_, ranges) = rest.split_once(" on lines ")?;
-    let ranges = ranges.split(" and ").next().unwrap_or_default();
-    let mut lines = Vec::new();
-    for part in ranges.split(',').map(str::trim).filter(|p| !p.is_empty()) {
-        let (a, b) = part.split_once('–').unwrap_or((part, part));
-        let (Ok(a), Ok(b)) = (a.trim().parse::<usize>(), b.trim().parse::<usize>()) else {
-            continue;
-        };
-        // A listed run can be long; the report shows runs, so its ends are enough.
-        if b >= a && b - a <= 100_000 {
-            lines.extend(a..=b);
-        }
-    }
-    Some((count, lines))
 }
 
 /// Rounds numbers written with more than six decimals (floating-point noise such as
@@ -1053,19 +1049,6 @@ mod tests {
             "x 1.123457 and v2.0000001"
         );
         assert_eq!(tidy_numbers("lines 3–5, 9."), "lines 3–5, 9.");
-    }
-
-    #[test]
-    fn summaries_of_further_rows_are_parsed() {
-        let (n, lines) = parse_more_rows(
-            "275 more rows like the one above (ta-fit-range) on lines 778–780, 856",
-        )
-        .unwrap();
-        assert_eq!(n, 275);
-        assert_eq!(lines, vec![778, 779, 780, 856]);
-        let (n, _) = parse_more_rows("1 more row like the one above (x) on lines 5").unwrap();
-        assert_eq!(n, 1);
-        assert!(parse_more_rows("salinity 34.62 is outside the range").is_none());
     }
 
     #[test]

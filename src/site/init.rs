@@ -87,9 +87,9 @@ omega_ar_adequate_min = 3.5
 omega_ar_marginal_min = 3.0
 
 [chemistry]
-k1k2 = "lueker2000"
-boron = "lee2010"
-kf = "pf87"
+carbonic_acid = "lueker2000"       # K1, K2 of carbonic acid
+total_boron = "lee2010"            # total boron to salinity ratio
+hydrogen_fluoride = "pf87"         # KF
 
 [report]
 title = "Carbonate chemistry screening"

@@ -9,6 +9,8 @@ use std::path::PathBuf;
 
 use serde::{Deserialize, Serialize};
 
+use crate::chem::catalogue::MethodKind;
+
 /// The whole site file.
 #[derive(Clone, Debug, Deserialize, Serialize, PartialEq)]
 #[serde(deny_unknown_fields)]
@@ -329,21 +331,17 @@ pub struct UserPathway {
     pub points: Vec<[f64; 2]>,
 }
 
-/// Names of the built-in pathways accepted in `[projection] pathways`.
-pub const BUILT_IN_PATHWAYS: &[&str] = &[
-    "SSP1-1.9", "SSP1-2.6", "SSP2-4.5", "SSP3-7.0", "SSP5-8.5", "steady",
-];
-
-/// `[projection]` (consumed by the outlook stage; only types and ranges are checked here).
+/// `[projection]`, kept as written: the outlook stage checks the names, years and sizes
+/// (`outlook::site_specs`); the site knows no pathway names.
 #[derive(Clone, Debug, Deserialize, Serialize, PartialEq)]
 #[serde(deny_unknown_fields)]
 pub struct ProjectionSpec {
-    /// Built-in pathway names ([`BUILT_IN_PATHWAYS`]) and names of `user_pathways`.
-    #[serde(default = "default_pathways")]
-    pub pathways: Vec<String>,
+    /// Pathway names (built-in or of `user_pathways`); `None` means the outlook's default.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pathways: Option<Vec<String>>,
     #[serde(default)]
     pub user_pathways: Vec<UserPathway>,
-    /// Years to project; empty means every 5 years after the records up to 2100.
+    /// Years to project; empty means the outlook's default years.
     #[serde(default)]
     pub horizon_years: Vec<i32>,
     #[serde(default)]
@@ -359,12 +357,6 @@ pub struct ProjectionSpec {
     pub seed: u64,
 }
 
-fn default_pathways() -> Vec<String> {
-    ["SSP1-2.6", "SSP2-4.5", "SSP5-8.5"]
-        .iter()
-        .map(|s| s.to_string())
-        .collect()
-}
 fn default_true() -> bool {
     true
 }
@@ -382,7 +374,7 @@ fn default_seed() -> u64 {
 impl Default for ProjectionSpec {
     fn default() -> Self {
         ProjectionSpec {
-            pathways: default_pathways(),
+            pathways: None,
             user_pathways: Vec::new(),
             horizon_years: Vec::new(),
             disequilibrium: Disequilibrium::default(),
@@ -390,18 +382,6 @@ impl Default for ProjectionSpec {
             members: DEFAULT_MEMBERS,
             seed: DEFAULT_SEED,
         }
-    }
-}
-
-impl ProjectionSpec {
-    /// The horizon years to use: the listed ones, or every 5 years from the first multiple of
-    /// 5 after `last_record_year` up to 2100.
-    pub fn horizon_years_or_default(&self, last_record_year: i32) -> Vec<i32> {
-        if !self.horizon_years.is_empty() {
-            return self.horizon_years.clone();
-        }
-        let first = (last_record_year.div_euclid(5) + 1) * 5;
-        (first..=2100).step_by(5).collect()
     }
 }
 
@@ -490,28 +470,42 @@ impl Default for ThresholdsSpec {
 #[derive(Clone, Debug, Deserialize, Serialize, PartialEq)]
 #[serde(deny_unknown_fields)]
 pub struct ChemistrySpec {
-    #[serde(default = "default_k1k2")]
-    pub k1k2: String,
-    #[serde(default = "default_boron")]
-    pub boron: String,
-    #[serde(default = "default_kf")]
-    pub kf: String,
+    /// Carbonic acid dissociation constants K1, K2 (citation id, e.g. `lueker2000`).
+    #[serde(default = "default_carbonic_acid")]
+    pub carbonic_acid: String,
+    /// Total boron to salinity ratio (citation id, e.g. `lee2010`).
+    #[serde(default = "default_total_boron")]
+    pub total_boron: String,
+    /// Hydrogen fluoride dissociation constant KF (citation id, e.g. `pf87`).
+    #[serde(default = "default_hydrogen_fluoride")]
+    pub hydrogen_fluoride: String,
+    /// Former names of the three keys (`k1k2`, `boron`, `kf`): accepted by the parser only so
+    /// that validation can say the new name at the old key's place.
+    #[serde(default, skip_serializing)]
+    pub k1k2: Option<serde::de::IgnoredAny>,
+    #[serde(default, skip_serializing)]
+    pub boron: Option<serde::de::IgnoredAny>,
+    #[serde(default, skip_serializing)]
+    pub kf: Option<serde::de::IgnoredAny>,
 }
-fn default_k1k2() -> String {
-    "lueker2000".to_string()
+fn default_carbonic_acid() -> String {
+    MethodKind::CarbonicAcid.default_id().to_string()
 }
-fn default_boron() -> String {
-    "lee2010".to_string()
+fn default_total_boron() -> String {
+    MethodKind::TotalBoron.default_id().to_string()
 }
-fn default_kf() -> String {
-    "pf87".to_string()
+fn default_hydrogen_fluoride() -> String {
+    MethodKind::HydrogenFluoride.default_id().to_string()
 }
 impl Default for ChemistrySpec {
     fn default() -> Self {
         ChemistrySpec {
-            k1k2: default_k1k2(),
-            boron: default_boron(),
-            kf: default_kf(),
+            carbonic_acid: default_carbonic_acid(),
+            total_boron: default_total_boron(),
+            hydrogen_fluoride: default_hydrogen_fluoride(),
+            k1k2: None,
+            boron: None,
+            kf: None,
         }
     }
 }
@@ -608,16 +602,6 @@ mod tests {
         assert_eq!(month_from_name("september"), Some(9));
         assert_eq!(month_from_name("Ju"), None);
         assert_eq!(month_from_name("Jux"), None);
-    }
-
-    #[test]
-    fn default_horizon_is_every_five_years_to_2100() {
-        let p = ProjectionSpec::default();
-        let y = p.horizon_years_or_default(2024);
-        assert_eq!(y.first(), Some(&2025));
-        assert_eq!(y.last(), Some(&2100));
-        assert_eq!(y.len(), 16);
-        assert_eq!(p.horizon_years_or_default(2025).first(), Some(&2030));
     }
 
     #[test]

@@ -7,10 +7,9 @@ use std::path::{Component, Path, PathBuf};
 use chrono::FixedOffset;
 
 use super::dates::parse_offset;
-use super::schema::{
-    BUILT_IN_PATHWAYS, MONTH_NAMES, MonthRef, Season, SiteFile, calendar_seasons, month_from_name,
-};
+use super::schema::{MONTH_NAMES, MonthRef, Season, SiteFile, calendar_seasons, month_from_name};
 use super::spans::{SourceMap, did_you_mean};
+use crate::chem::catalogue::{MethodKind, UnknownMethod};
 use crate::chem::{BoronTotal, K1K2, KfSource, MethodSet};
 use crate::diag::{Diagnostic, Diagnostics};
 
@@ -23,11 +22,6 @@ pub const SALINITY_RANGE: (f64, f64) = (0.0, 45.0);
 /// present rate) and at most 50, the outlook stage's bounds. Kinsey (1985, from memory) gives
 /// ≈10 for high-cover zones.
 pub const NET_CALCIFICATION_RANGE: (f64, f64) = (0.0, 50.0);
-
-/// Names accepted in `[chemistry]` (as defined by the chemistry module).
-pub const K1K2_NAMES: &[&str] = &["lueker2000", "millero2010", "wmw2014", "sulpis2020", "dm87"];
-pub const BORON_NAMES: &[&str] = &["lee2010", "uppstrom1974"];
-pub const KF_NAMES: &[&str] = &["pf87", "dr79"];
 
 /// What validation derives from a valid site file.
 #[derive(Clone, Debug)]
@@ -53,6 +47,18 @@ impl Checker<'_> {
             .with_file(self.file)
             .with_help(help);
         self.diags.push(self.map.at_path(d, path));
+    }
+    /// An error pointing at the key itself (not its value), e.g. a key under a former name.
+    fn error_at_key(&mut self, path: &str, message: impl Into<String>, help: impl Into<String>) {
+        let d = Diagnostic::error(message)
+            .with_file(self.file)
+            .with_help(help)
+            .with_field(path);
+        let d = match self.map.key_span(path) {
+            Some(span) => self.map.locate(d, span),
+            None => self.map.at_path(d, path),
+        };
+        self.diags.push(d);
     }
     fn warning(&mut self, path: &str, message: impl Into<String>, help: impl Into<String>) {
         let d = Diagnostic::warning(message)
@@ -90,13 +96,58 @@ pub fn tidy_path(p: &Path) -> PathBuf {
     }
 }
 
-/// Checks every value of `site`; `file` is the site file's path as given.
+/// Checks every value of `site`; `file` is the site file's path as given. The outlook's
+/// keys (`[projection]` pathways and years, `[calcification]` ids) are checked by the outlook.
 pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolved>, Diagnostics) {
     let mut c = Checker {
         file,
         map,
         diags: Diagnostics::new(),
     };
+    let utc_offset = check_site(&mut c, site);
+    check_plan(&mut c, site);
+    check_baseline(&mut c, site);
+    let record_paths = check_records(&mut c, site);
+    let seasons = check_seasons(&mut c, site);
+    check_uncertainty(&mut c, site);
+    check_thresholds(&mut c, site);
+    let methods = check_chemistry(&mut c, site);
+    check_scenarios(&mut c, site, seasons.as_deref());
+    if let Some(d) = &site.report.date
+        && chrono::NaiveDate::parse_from_str(d, "%Y-%m-%d").is_err()
+    {
+        c.error(
+            "report.date",
+            format!("`{d}` is not a date"),
+            "write the report date as \"YYYY-MM-DD\", e.g. \"2025-06-30\"",
+        );
+    }
+
+    let resolved = match (utc_offset, seasons, methods) {
+        (Some(utc_offset), Some(seasons), Some(methods)) if !c.diags.has_errors() => {
+            let mut season_of_month = [0usize; 12];
+            for (i, s) in seasons.iter().enumerate() {
+                for &m in &s.months {
+                    if let Some(slot) = season_of_month.get_mut(m as usize - 1) {
+                        *slot = i;
+                    }
+                }
+            }
+            Some(Resolved {
+                utc_offset,
+                seasons,
+                season_of_month,
+                methods,
+                record_paths,
+            })
+        }
+        _ => None,
+    };
+    (resolved, c.diags)
+}
+
+/// `[site]`; returns the UTC offset when valid.
+fn check_site(c: &mut Checker<'_>, site: &SiteFile) -> Option<FixedOffset> {
     let s = &site.site;
     if s.name.trim().is_empty() {
         c.error(
@@ -154,7 +205,7 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
             " m² (positive)",
         );
     }
-    let utc_offset = match parse_offset(&s.utc_offset) {
+    match parse_offset(&s.utc_offset) {
         Some(Some(o)) => Some(o),
         _ => {
             c.error(
@@ -164,9 +215,11 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
             );
             None
         }
-    };
+    }
+}
 
-    // [plan]
+/// `[plan]`.
+fn check_plan(c: &mut Checker<'_>, site: &SiteFile) {
     let p = &site.plan;
     if let Some(a) = p.outplanting_area_m2 {
         c.range(
@@ -177,7 +230,7 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
             1e10,
             " m²",
         );
-        if let Some(site_area) = s.area_m2
+        if let Some(site_area) = site.site.area_m2
             && a > site_area
         {
             c.warning(
@@ -204,8 +257,10 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
             "the end year must not be before the start year",
         );
     }
+}
 
-    // [baseline]
+/// `[baseline]`.
+fn check_baseline(c: &mut Checker<'_>, site: &SiteFile) {
     let b = &site.baseline;
     if let Some(v) = b.net_calcification_kg_m2_yr {
         let (lo, hi) = NET_CALCIFICATION_RANGE;
@@ -234,9 +289,11 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
             help,
         );
     }
+}
 
-    // [[records]]
-    let base = file.parent().unwrap_or(Path::new(""));
+/// `[[records]]`; returns the record paths resolved against the site file's folder.
+fn check_records(c: &mut Checker<'_>, site: &SiteFile) -> Vec<PathBuf> {
+    let base = c.file.parent().unwrap_or(Path::new(""));
     let mut record_paths = Vec::new();
     if site.records.is_empty() {
         c.error(
@@ -298,139 +355,11 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
             );
         }
     }
+    record_paths
+}
 
-    // [seasons]
-    let seasons = check_seasons(&mut c, site);
-
-    // [projection]
-    let pr = &site.projection;
-    let mut known: Vec<String> = BUILT_IN_PATHWAYS.iter().map(|s| s.to_string()).collect();
-    let mut user_names = BTreeSet::new();
-    for (i, u) in pr.user_pathways.iter().enumerate() {
-        let path = format!("projection.user_pathways[{i}]");
-        if u.name.trim().is_empty() {
-            c.error(
-                &format!("{path}.name"),
-                "the pathway name is empty",
-                "give the pathway a name",
-            );
-        } else if BUILT_IN_PATHWAYS
-            .iter()
-            .any(|b| b.eq_ignore_ascii_case(&u.name))
-        {
-            c.error(
-                &format!("{path}.name"),
-                format!("`{}` is the name of a built-in pathway", u.name),
-                "choose another name for your own pathway",
-            );
-        } else if !user_names.insert(u.name.clone()) {
-            c.error(
-                &format!("{path}.name"),
-                format!("pathway `{}` is defined twice", u.name),
-                "give each user pathway its own name",
-            );
-        }
-        known.push(u.name.clone());
-        if u.points.len() < 2 {
-            c.error(
-                &format!("{path}.points"),
-                "a user pathway needs at least two [year, ppm] points",
-                "e.g. points = [[2025, 425.0], [2100, 600.0]]",
-            );
-        }
-        let mut prev = f64::NEG_INFINITY;
-        // The outlook's own limits, so that the site check and the projection agree.
-        let (y0, y1) = (1850.0, 2500.0);
-        let (c0, c1) = crate::outlook::pathways::USER_PPM_RANGE;
-        for (j, [y, ppm]) in u.points.iter().enumerate() {
-            let pp = format!("{path}.points[{j}]");
-            if !y.is_finite() || *y < y0 || *y > y1 || y.fract() != 0.0 {
-                c.error(
-                    &pp,
-                    format!("year {y} is not a whole year between {y0} and {y1}"),
-                    "each point is [year, ppm]",
-                );
-            } else if *y <= prev {
-                c.error(
-                    &pp,
-                    format!("year {y} is not after the previous point's year {prev}"),
-                    "list the points in increasing year order",
-                );
-            }
-            prev = *y;
-            if !ppm.is_finite() || *ppm < c0 || *ppm > c1 {
-                c.error(
-                    &pp,
-                    format!("CO2 {ppm} ppm is outside the valid range"),
-                    format!("atmospheric CO2 must be between {c0} and {c1} ppm"),
-                );
-            }
-        }
-    }
-    if pr.pathways.is_empty() {
-        c.error(
-            "projection.pathways",
-            "no pathways are listed",
-            format!("list one or more of: {}", known.join(", ")),
-        );
-    }
-    for (i, name) in pr.pathways.iter().enumerate() {
-        if !known.iter().any(|k| k == name) {
-            let help = match known.iter().find(|k| k.eq_ignore_ascii_case(name)) {
-                Some(k) => format!("did you mean `{k}`? (names are case-sensitive)"),
-                None => match did_you_mean(name, known.iter().map(String::as_str)) {
-                    Some(k) => format!("did you mean `{k}`? valid pathways: {}", known.join(", ")),
-                    None => format!(
-                        "valid pathways: {} (or define your own in [[projection.user_pathways]])",
-                        known.join(", ")
-                    ),
-                },
-            };
-            c.error(
-                &format!("projection.pathways[{i}]"),
-                format!("unknown pathway `{name}`"),
-                help,
-            );
-        }
-    }
-    let mut prev_year = i32::MIN;
-    for (i, y) in pr.horizon_years.iter().enumerate() {
-        let path = format!("projection.horizon_years[{i}]");
-        if !(2000..=2500).contains(y) {
-            c.error(
-                &path,
-                format!("horizon year {y} is outside 2000–2500"),
-                "list years such as [2030, 2050, 2070, 2100]",
-            );
-        } else if *y <= prev_year {
-            c.error(
-                &path,
-                format!("horizon year {y} is not after {prev_year}"),
-                "list horizon years in increasing order, each once",
-            );
-        }
-        prev_year = *y;
-    }
-    if pr.members == 0 {
-        c.error(
-            "projection.members",
-            "0 ensemble members".to_string(),
-            "e.g. members = 1000",
-        );
-    }
-
-    // [calcification]
-    for (i, r) in site.calcification.relationships.iter().enumerate() {
-        if r.trim().is_empty() {
-            c.error(
-                &format!("calcification.relationships[{i}]"),
-                "empty relationship id",
-                "remove the empty entry",
-            );
-        }
-    }
-
-    // [uncertainty]
+/// `[uncertainty]`.
+fn check_uncertainty(c: &mut Checker<'_>, site: &SiteFile) {
     let u = &site.uncertainty;
     c.range(
         "uncertainty.ta_umol_kg",
@@ -457,33 +386,18 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
         50.0,
         " %",
     );
+}
 
-    // [thresholds]
+/// `[thresholds]`.
+fn check_thresholds(c: &mut Checker<'_>, site: &SiteFile) {
     let t = &site.thresholds;
-    c.range(
-        "thresholds.omega_ar_optimal_min",
-        "omega_ar_optimal_min",
-        t.omega_ar_optimal_min,
-        0.0,
-        10.0,
-        "",
-    );
-    c.range(
-        "thresholds.omega_ar_adequate_min",
-        "omega_ar_adequate_min",
-        t.omega_ar_adequate_min,
-        0.0,
-        10.0,
-        "",
-    );
-    c.range(
-        "thresholds.omega_ar_marginal_min",
-        "omega_ar_marginal_min",
-        t.omega_ar_marginal_min,
-        0.0,
-        10.0,
-        "",
-    );
+    for (key, v) in [
+        ("omega_ar_optimal_min", t.omega_ar_optimal_min),
+        ("omega_ar_adequate_min", t.omega_ar_adequate_min),
+        ("omega_ar_marginal_min", t.omega_ar_marginal_min),
+    ] {
+        c.range(&format!("thresholds.{key}"), key, v, 0.0, 10.0, "");
+    }
     if !(t.omega_ar_optimal_min > t.omega_ar_adequate_min
         && t.omega_ar_adequate_min > t.omega_ar_marginal_min)
     {
@@ -496,14 +410,39 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
             "require omega_ar_optimal_min > omega_ar_adequate_min > omega_ar_marginal_min (defaults 4.0, 3.5, 3.0)",
         );
     }
+}
 
-    // [chemistry]
+/// `[chemistry]`: the method set, with the former key names refused with their new names.
+fn check_chemistry(c: &mut Checker<'_>, site: &SiteFile) -> Option<MethodSet> {
     let ch = &site.chemistry;
-    let k1k2 = parse_method::<K1K2>(&mut c, "chemistry.k1k2", &ch.k1k2, K1K2_NAMES);
-    let boron = parse_method::<BoronTotal>(&mut c, "chemistry.boron", &ch.boron, BORON_NAMES);
-    let kf = parse_method::<KfSource>(&mut c, "chemistry.kf", &ch.kf, KF_NAMES);
+    for (old, kind, set) in [
+        ("k1k2", MethodKind::CarbonicAcid, ch.k1k2.is_some()),
+        ("boron", MethodKind::TotalBoron, ch.boron.is_some()),
+        ("kf", MethodKind::HydrogenFluoride, ch.kf.is_some()),
+    ] {
+        if set {
+            let (new, example) = (kind.site_key(), kind.default_id());
+            c.error_at_key(
+                &format!("chemistry.{old}"),
+                format!("the key `{old}` in [chemistry] is now called `{new}`"),
+                format!(
+                    "rename the key to `{new}`; the values are the same citation ids (e.g. {new} = \"{example}\")"
+                ),
+            );
+        }
+    }
+    let k1k2 = parse_method::<K1K2>(c, &ch.carbonic_acid);
+    let boron = parse_method::<BoronTotal>(c, &ch.total_boron);
+    let kf = parse_method::<KfSource>(c, &ch.hydrogen_fluoride);
+    Some(MethodSet {
+        k1k2: k1k2?,
+        boron: boron?,
+        kf: kf?,
+    })
+}
 
-    // [[scenario]]
+/// `[[scenario]]`.
+fn check_scenarios(c: &mut Checker<'_>, site: &SiteFile, seasons: Option<&[Season]>) {
     let mut names = BTreeSet::new();
     for (i, sc) in site.scenario.iter().enumerate() {
         let path = format!("scenario[{i}]");
@@ -520,91 +459,48 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
                 "give each scenario its own name",
             );
         }
-        c.range(
-            &format!("{path}.ta_offset_umol_kg"),
-            "ta_offset_umol_kg",
-            sc.ta_offset_umol_kg,
-            -500.0,
-            500.0,
-            " µmol/kg",
-        );
-        c.range(
-            &format!("{path}.dic_offset_umol_kg"),
-            "dic_offset_umol_kg",
-            sc.dic_offset_umol_kg,
-            -500.0,
-            500.0,
-            " µmol/kg",
-        );
-        if let (Some(list), Some(seasons)) = (&sc.seasons, &seasons) {
-            for (j, name) in list.iter().enumerate() {
-                if !seasons.iter().any(|s| &s.name == name) {
-                    let valid: Vec<&str> = seasons.iter().map(|s| s.name.as_str()).collect();
-                    let help = match did_you_mean(name, valid.iter().copied()) {
-                        Some(s) => format!("did you mean `{s}`? seasons: {}", valid.join(", ")),
-                        None => format!("seasons: {}", valid.join(", ")),
-                    };
-                    c.error(
-                        &format!("{path}.seasons[{j}]"),
-                        format!("unknown season `{name}`"),
-                        help,
-                    );
-                }
+        for (key, v) in [
+            ("ta_offset_umol_kg", sc.ta_offset_umol_kg),
+            ("dic_offset_umol_kg", sc.dic_offset_umol_kg),
+        ] {
+            c.range(&format!("{path}.{key}"), key, v, -500.0, 500.0, " µmol/kg");
+        }
+        let (Some(list), Some(seasons)) = (&sc.seasons, seasons) else {
+            continue;
+        };
+        for (j, name) in list.iter().enumerate() {
+            if !seasons.iter().any(|s| &s.name == name) {
+                let valid: Vec<&str> = seasons.iter().map(|s| s.name.as_str()).collect();
+                let help = match did_you_mean(name, valid.iter().copied()) {
+                    Some(s) => format!("did you mean `{s}`? seasons: {}", valid.join(", ")),
+                    None => format!("seasons: {}", valid.join(", ")),
+                };
+                c.error(
+                    &format!("{path}.seasons[{j}]"),
+                    format!("unknown season `{name}`"),
+                    help,
+                );
             }
         }
     }
-
-    // [report]
-    if let Some(d) = &site.report.date
-        && chrono::NaiveDate::parse_from_str(d, "%Y-%m-%d").is_err()
-    {
-        c.error(
-            "report.date",
-            format!("`{d}` is not a date"),
-            "write the report date as \"YYYY-MM-DD\", e.g. \"2025-06-30\"",
-        );
-    }
-
-    let resolved = match (utc_offset, seasons, k1k2, boron, kf) {
-        (Some(utc_offset), Some(seasons), Some(k1k2), Some(boron), Some(kf))
-            if !c.diags.has_errors() =>
-        {
-            let mut season_of_month = [0usize; 12];
-            for (i, s) in seasons.iter().enumerate() {
-                for &m in &s.months {
-                    if let Some(slot) = season_of_month.get_mut(m as usize - 1) {
-                        *slot = i;
-                    }
-                }
-            }
-            Some(Resolved {
-                utc_offset,
-                seasons,
-                season_of_month,
-                methods: MethodSet { k1k2, boron, kf },
-                record_paths,
-            })
-        }
-        _ => None,
-    };
-    (resolved, c.diags)
 }
 
-fn parse_method<T: std::str::FromStr>(
+/// One `[chemistry]` value parsed through the chemistry module's catalogue, with its
+/// suggestion and the valid ids when unknown.
+fn parse_method<T: std::str::FromStr<Err = UnknownMethod>>(
     c: &mut Checker<'_>,
-    path: &str,
     value: &str,
-    names: &[&str],
 ) -> Option<T> {
     match value.parse::<T>() {
         Ok(v) => Some(v),
-        Err(_) => {
-            let list = names.join(", ");
-            let help = match did_you_mean(value, names.iter().copied()) {
+        Err(e) => {
+            let list = e.choices.join(", ");
+            let help = match e.suggestion {
                 Some(s) => format!("did you mean `{s}`? valid names: {list}"),
                 None => format!("valid names: {list}"),
             };
-            c.error(path, format!("unknown method `{value}`"), help);
+            let path = format!("chemistry.{}", e.kind.site_key());
+            c.error(&path, format!("unknown method `{value}`"), help);
             None
         }
     }
