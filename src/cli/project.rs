@@ -154,10 +154,7 @@ pub fn load_and_project(
 
 /// True when an outlook could not solve some ensemble members.
 pub fn has_unsolved(outlook: &Outlook) -> bool {
-    outlook
-        .notes
-        .iter()
-        .any(|n| n.contains("could not be solved"))
+    outlook.unsolved_member_years() > 0
 }
 
 /// Runs `project`; returns the exit status.

@@ -64,6 +64,8 @@ pub enum Form {
 pub struct Relationship {
     /// Short id used in quantity names, e.g. "chan2013".
     pub id: &'static str,
+    /// Name for readers: authors and year, e.g. "Chan & Connolly (2013)".
+    pub name: &'static str,
     /// Citation.
     pub source: &'static str,
     /// Functional form as text.
@@ -130,6 +132,7 @@ pub fn builtin_relationships() -> Vec<Relationship> {
     vec![
         Relationship {
             id: "chan2013",
+            name: "Chan & Connolly (2013)",
             source: "Chan & Connolly (2013), Global Change Biology 19:282-290 (meta-analysis of \
                      coral experiments)",
             form_text: "relative change = -s x (Omega_b - Omega), linear",
@@ -145,6 +148,7 @@ pub fn builtin_relationships() -> Vec<Relationship> {
         },
         Relationship {
             id: "silverman2009",
+            name: "Silverman et al. (2009)",
             source: "Silverman, Lazar, Cao, Caldeira & Erez (2009), GRL 36:L05606; rate law of \
                      Burton & Walter (1987), Geology 15:111",
             form_text: "G = k(T) x (Omega_ar - 1)^n(T); G = 0 for Omega_ar <= 1",
@@ -160,6 +164,7 @@ pub fn builtin_relationships() -> Vec<Relationship> {
         },
         Relationship {
             id: "langdon2005",
+            name: "Langdon & Atkinson (2005)",
             source: "Langdon & Atkinson (2005), JGR 110:C09S07",
             form_text: "G = k x (Omega_ar - 1), linear in Omega_ar - 1",
             parameters: "k site-, species-, light- and temperature-dependent (cancels in the \

@@ -188,7 +188,7 @@ fn record_of(smp: &Sample, ta_fit_rmse: Option<f64>) -> Option<ProjectionRecord>
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::outlook::{NoProgress, run};
+    use crate::outlook::{NoProgress, Quantity, ScenarioId, run};
     use crate::site::load_site;
 
     fn write_site(dir: &std::path::Path, projection: &str) -> std::path::PathBuf {
@@ -256,12 +256,23 @@ mod tests {
         assert_eq!(s.calcification.baseline_rate_kg_m2_yr, 1.5);
         let o = run(&site, &s, &NoProgress).unwrap();
         // The scenario changes only the cool season.
-        let warm_base = o.series("local", "none", "warm", "omega_ar");
-        let warm_sc = o.series("local", "alkalinity +20", "warm", "omega_ar");
-        assert_eq!(warm_base, warm_sc);
-        let cool_base = o.series("local", "none", "cool", "omega_ar");
-        let cool_sc = o.series("local", "alkalinity +20", "cool", "omega_ar");
-        assert!(cool_base.iter().zip(&cool_sc).all(|(a, b)| b.1[2] > a.1[2]));
+        let local = o.pathway_id("local").unwrap();
+        let omega = |sc, season| {
+            let g = o.group_id(season).unwrap();
+            o.series(local, sc, g, Quantity::OmegaAr)
+                .unwrap()
+                .points
+                .clone()
+        };
+        let scenario = ScenarioId::Local(0);
+        assert_eq!(omega(ScenarioId::Base, "warm"), omega(scenario, "warm"));
+        let (cool_base, cool_sc) = (omega(ScenarioId::Base, "cool"), omega(scenario, "cool"));
+        assert!(
+            cool_base
+                .iter()
+                .zip(&cool_sc)
+                .all(|(a, b)| b.q.p50 > a.q.p50)
+        );
     }
 
     #[test]

@@ -2,7 +2,8 @@
 //! seeded Monte Carlo ensemble, Omega_ar habitat thresholds and the calcification outlook.
 //!
 //! Entry point: [`run`] takes a plain [`SiteInput`] (records already solved to TA and pCO2) and
-//! [`ProjectionSettings`], and returns an [`Outlook`] that [`output`] writes as CSV or JSON.
+//! [`ProjectionSettings`], and returns a typed [`Outlook`] ([`result`]) that [`output`] writes
+//! as CSV or JSON and the report reads directly.
 //!
 //! ```text
 //! records ──► anchors (sampling-year atmosphere, disequilibrium)
@@ -18,6 +19,7 @@ pub mod from_site;
 pub mod output;
 pub mod pathways;
 pub mod projection;
+pub mod result;
 pub mod rng;
 pub mod scenario;
 pub mod site_specs;
@@ -35,10 +37,15 @@ pub use ensemble::{
     run,
 };
 pub use from_site::from_loaded_site;
-pub use output::{Outlook, OutputFormat, OutputTable};
+pub use output::{OutputFormat, OutputTable};
 pub use pathways::{Observed, Pathway, PathwayError, Ssp};
 pub use projection::{
     Disequilibrium, Measurement, ProjectedPoint, ProjectionRecord, project_record,
+};
+pub use result::{
+    BelowProbability, Criterion, Crossing, CrossingGroup, CrossingKind, CrossingYears, GroupId,
+    Note, Outlook, PathwayId, QuantilePoint, QuantileSeries, Quantiles, Quantity, RelationshipId,
+    ScenarioId,
 };
 pub use scenario::{LocalScenario, Offsets};
 pub use thresholds::HabitatClasses;

@@ -1,5 +1,5 @@
-//! The outlook's results and their machine-readable forms (design notes, "Output
-//! conventions"): long-format CSV (one row per pathway, scenario, year, season and quantity,
+//! Views of the typed outlook ([`super::result`]) in machine-readable form (design notes,
+//! "Output conventions"): long-format CSV (one row per pathway, scenario, year, season and quantity,
 //! with quantile columns) and JSON with the same content plus the threshold-crossing table,
 //! the probabilities of lying below each habitat threshold and the calcification outlook.
 //!
@@ -7,14 +7,17 @@
 //! (JSON), so equal inputs give byte-identical files. Every numeric field carries its unit in
 //! its name (`pco2_uatm`, `net_calc_kg_m2_yr_...`, `threshold_omega_ar`, `prob_below_pct`).
 
+use std::borrow::Cow;
 use std::fmt;
 use std::io::{self, Write};
 use std::str::FromStr;
 
 use serde::Serialize;
 
-use super::calcification::Relationship;
-use super::thresholds::HabitatClasses;
+use super::result::{
+    Criterion, Crossing, CrossingKind, Note, Outlook, QuantilePoint, QuantileSeries, Quantity,
+    ScenarioInfo, SettingsInfo,
+};
 
 /// Cautions carried in every JSON output.
 pub const CAUTIONS: [&str; 4] = [
@@ -78,168 +81,155 @@ impl FromStr for OutputTable {
     }
 }
 
-/// One row of the long-format table.
-#[derive(Clone, Debug, PartialEq)]
-pub struct QuantileRow {
-    pub pathway: String,
-    /// "none" for the base case, else the local scenario's name.
-    pub scenario: String,
-    pub year: i32,
-    /// A season label, or the all-records aggregate ("annual").
-    pub season: String,
-    /// Quantity name with its unit (e.g. `omega_ar`, `pco2_uatm`).
-    pub quantity: String,
-    /// Decimals used when writing.
-    pub decimals: usize,
-    /// The 5, 25, 50, 75 and 95 % quantiles (NaN when no member could be solved).
-    pub q: [f64; 5],
-    /// Ensemble members that were solved (ensemble off: records).
-    pub members: usize,
-    /// Calcification quantities: percent of members outside the relationship's fitted
-    /// Omega_ar/temperature range (extrapolation), else `None`.
-    pub outside_fit_pct: Option<f64>,
+/// The CSV/JSON name of a quantity, with its unit.
+pub fn quantity_name(q: Quantity) -> Cow<'static, str> {
+    match q {
+        Quantity::OmegaAr => "omega_ar".into(),
+        Quantity::OmegaCa => "omega_ca".into(),
+        Quantity::PhT => "ph_t".into(),
+        Quantity::Pco2 => "pco2_uatm".into(),
+        Quantity::Dic => "dic_umol_kg".into(),
+        Quantity::Ta => "ta_umol_kg".into(),
+        Quantity::Co3 => "co3_umol_kg".into(),
+        Quantity::TempC => "temp_c".into(),
+        Quantity::CalcChangePct(id) => format!("calc_change_pct_{}", id.as_str()).into(),
+        Quantity::NetCalc(id) => format!("net_calc_kg_m2_yr_{}", id.as_str()).into(),
+    }
 }
 
-/// What a crossing row measures.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
-#[serde(rename_all = "snake_case")]
-pub enum CrossingKind {
-    /// Omega_ar falls strictly below a habitat threshold.
-    OmegaArBelow,
-    /// Net calcification reaches zero or less.
-    NetCalcificationZero,
+/// Decimals a quantity is written with.
+pub fn quantity_decimals(q: Quantity) -> usize {
+    match q {
+        Quantity::OmegaAr | Quantity::OmegaCa | Quantity::PhT => 4,
+        Quantity::Pco2 | Quantity::Dic | Quantity::Ta | Quantity::Co3 => 2,
+        Quantity::TempC => 3,
+        Quantity::CalcChangePct(_) => 2,
+        Quantity::NetCalc(_) => 4,
+    }
 }
 
-/// First horizon years at which the 5 %, 50 % and 95 % quantiles meet a criterion.
-#[derive(Clone, Debug, PartialEq)]
-pub struct CrossingRow {
-    pub pathway: String,
-    pub scenario: String,
-    /// Season label, the aggregate, or "worst season" (lowest season quantile each year).
-    pub season: String,
-    pub kind: CrossingKind,
-    /// Human-readable criterion, e.g. "omega_ar below adequate" or "net calcification <= 0
-    /// (silverman2009)".
-    pub criterion: String,
-    /// Threshold value in `threshold_unit`.
-    pub threshold: f64,
-    pub threshold_unit: &'static str,
-    /// First horizon year at which the 5th percentile, the median and the 95th percentile
-    /// meet the criterion (`None`: not within the horizon). For the 5th percentile at least
-    /// 5 % of the members meet it then (an early warning); for the median at least half; for
-    /// the 95th percentile at least 95 % (nearly certain under the model's assumptions).
-    pub first_year: [Option<i32>; 3],
-    /// True when the criterion is already met by the median at the site's baseline
-    /// (sampling conditions).
-    pub met_at_baseline: bool,
+/// A crossing criterion as written: its text, threshold and the threshold's unit.
+pub fn criterion_text(c: &Criterion) -> (String, f64, &'static str) {
+    match c {
+        Criterion::OmegaArBelow {
+            class,
+            threshold_omega_ar,
+        } => (
+            format!("omega_ar below {class}"),
+            *threshold_omega_ar,
+            "omega_ar",
+        ),
+        Criterion::NetCalcificationZero(id) => (
+            format!("net calcification <= 0 ({})", id.as_str()),
+            0.0,
+            "kg_caco3_m2_yr",
+        ),
+    }
 }
 
-/// Probability of Omega_ar below one threshold at one horizon year.
-#[derive(Clone, Debug, PartialEq)]
-pub struct ProbabilityRow {
-    pub pathway: String,
-    pub scenario: String,
-    pub year: i32,
-    pub season: String,
-    /// The class whose lower bound this is.
-    pub class_left: String,
-    pub threshold_omega_ar: f64,
-    /// Percent of members below the threshold.
-    pub prob_below_pct: f64,
-    /// Class of the median Omega_ar.
-    pub median_class: String,
+impl fmt::Display for Note {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Note::SeasonWithoutRecords { season } => {
+                write!(
+                    f,
+                    "season \"{season}\" has no usable records; not projected"
+                )
+            }
+            Note::RelationshipNotScalable {
+                relationship,
+                group,
+                baseline_omega_ar,
+            } => write!(
+                f,
+                "calcification relationship {} cannot be scaled for \"{group}\": baseline \
+                 Omega_ar {baseline_omega_ar:.3} gives no positive rate",
+                relationship.as_str()
+            ),
+            Note::BaselineOutsideFit {
+                relationship,
+                group,
+                baseline_omega_ar,
+                baseline_temp_c,
+            } => write!(
+                f,
+                "calcification relationship {}: the baseline of \"{group}\" (Omega_ar \
+                 {baseline_omega_ar:.3}, {baseline_temp_c:.2} degC) lies outside its fitted \
+                 range (extrapolation)",
+                relationship.as_str()
+            ),
+            Note::ConstantsRange {
+                outside,
+                total,
+                warming,
+                examples,
+            } => write!(
+                f,
+                "constants range: {outside} of {total} record conditions (record temperature{}) \
+                 lie outside a constant set's fitted range; they were solved anyway. Examples: \
+                 {}",
+                if *warming {
+                    " and warmed temperatures"
+                } else {
+                    ""
+                },
+                examples.join("; ")
+            ),
+            Note::UnsolvedMembers {
+                member_years,
+                first,
+            } => write!(
+                f,
+                "{member_years} member-years could not be solved and were left out of the \
+                 quantiles; first: {first}"
+            ),
+        }
+    }
 }
 
-/// One pathway as used.
-#[derive(Clone, Debug, PartialEq, Serialize)]
-pub struct PathwayInfo {
-    pub name: String,
-    pub source: String,
-    /// Atmospheric CO2 at each horizon year, ppm.
-    pub xco2_ppm: Vec<f64>,
-    /// SST change at 2090 relative to 1995–2014, °C (applied only when warming is on).
-    pub warming_2090_c: f64,
-    pub warming_source: String,
-}
-
-/// One season (or the aggregate) and its baseline.
-#[derive(Clone, Debug, PartialEq, Serialize)]
-pub struct GroupInfo {
-    pub label: String,
-    /// True for the all-records aggregate.
-    pub aggregate: bool,
-    pub records: usize,
-    /// Mean Omega_ar of the records at sampling (central constants).
-    pub baseline_omega_ar: f64,
-    /// Mean temperature of the records, °C.
-    pub baseline_temp_c: f64,
-    /// Latest sampling year among the records.
-    pub sample_year_max: i32,
-}
-
-/// One local scenario as used.
-#[derive(Clone, Debug, PartialEq, Serialize)]
-pub struct ScenarioInfo {
-    pub name: String,
-    /// (season, TA offset µmol/kg, DIC offset µmol/kg) per season.
-    pub offsets: Vec<(String, f64, f64)>,
-    pub start_year: Option<i32>,
-}
-
-/// The run's settings, for provenance.
-#[derive(Clone, Debug, PartialEq, Serialize)]
-pub struct SettingsInfo {
-    pub seed: u64,
-    /// 0 when the ensemble is off.
-    pub members: usize,
-    pub disequilibrium: String,
-    pub warming: bool,
-    pub horizon_years: Vec<i32>,
-    pub constants_uncertainty: String,
-    pub measurement_uncertainty: String,
-    pub record_variability: String,
-    pub methods: Vec<(String, String)>,
-    pub observed_co2_source: String,
-}
-
-/// Everything the outlook produced.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Outlook {
-    pub site: String,
-    pub settings: SettingsInfo,
-    pub pathways: Vec<PathwayInfo>,
-    pub groups: Vec<GroupInfo>,
-    pub scenarios: Vec<ScenarioInfo>,
-    pub rows: Vec<QuantileRow>,
-    pub crossings: Vec<CrossingRow>,
-    pub probabilities: Vec<ProbabilityRow>,
-    pub classes: HabitatClasses,
-    pub relationships: Vec<Relationship>,
-    pub calcification_baseline_kg_m2_yr: f64,
-    pub calcification_baseline_source: String,
-    /// Warnings and notes (range flags, failed members, skipped seasons).
-    pub notes: Vec<String>,
+/// One row of the long-format quantile table.
+pub struct QuantileRow<'a> {
+    pub pathway: &'a str,
+    pub scenario: &'a str,
+    pub season: &'a str,
+    pub quantity: Quantity,
+    pub point: &'a QuantilePoint,
 }
 
 impl Outlook {
-    /// The quantile series of one quantity: (year, [p05, p25, p50, p75, p95]).
-    pub fn series(
-        &self,
-        pathway: &str,
-        scenario: &str,
-        season: &str,
-        quantity: &str,
-    ) -> Vec<(i32, [f64; 5])> {
-        self.rows
-            .iter()
-            .filter(|r| {
-                r.pathway == pathway
-                    && r.scenario == scenario
-                    && r.season == season
-                    && r.quantity == quantity
-            })
-            .map(|r| (r.year, r.q))
-            .collect()
+    /// The rows of the long-format table: by pathway, scenario, year, group and quantity.
+    pub fn quantile_rows(&self) -> Vec<QuantileRow<'_>> {
+        let mut rows = Vec::with_capacity(self.series.len() * self.settings.horizon_years.len());
+        for (pid, p) in self.pathway_ids() {
+            for (sid, scenario) in self.scenario_ids() {
+                let mut block: Vec<(&QuantileSeries, std::slice::Iter<'_, QuantilePoint>)> = self
+                    .series
+                    .iter()
+                    .filter(|s| s.pathway == pid && s.scenario == sid)
+                    .map(|s| (s, s.points.iter()))
+                    .collect();
+                // Year by year: the next point of every series of the block.
+                loop {
+                    let mut any = false;
+                    for (s, points) in block.iter_mut() {
+                        if let Some(point) = points.next() {
+                            any = true;
+                            rows.push(QuantileRow {
+                                pathway: &p.name,
+                                scenario,
+                                season: self.group_label(s.group),
+                                quantity: s.quantity,
+                                point,
+                            });
+                        }
+                    }
+                    if !any {
+                        break;
+                    }
+                }
+            }
+        }
+        rows
     }
 
     /// Writes the outlook in `format` (`table` selects the CSV table).
@@ -274,17 +264,22 @@ impl Outlook {
             "members",
             "outside_fit_pct",
         ])?;
-        for r in &self.rows {
+        for r in self.quantile_rows() {
+            let d = quantity_decimals(r.quantity);
             let mut rec: Vec<String> = vec![
-                r.pathway.clone(),
-                r.scenario.clone(),
-                r.year.to_string(),
-                r.season.clone(),
-                r.quantity.clone(),
+                r.pathway.to_string(),
+                r.scenario.to_string(),
+                r.point.year.to_string(),
+                r.season.to_string(),
+                quantity_name(r.quantity).into_owned(),
             ];
-            rec.extend(r.q.iter().map(|v| fixed(*v, r.decimals)));
-            rec.push(r.members.to_string());
-            rec.push(r.outside_fit_pct.map_or(String::new(), |v| fixed(v, 1)));
+            rec.extend(r.point.q.levels().iter().map(|v| fixed(*v, d)));
+            rec.push(r.point.members.to_string());
+            rec.push(
+                r.point
+                    .outside_fit_pct
+                    .map_or(String::new(), |v| fixed(v, 1)),
+            );
             c.write_record(&rec)?;
         }
         c.flush()?;
@@ -308,16 +303,19 @@ impl Outlook {
         ])?;
         for r in &self.crossings {
             let y = |v: Option<i32>| v.map_or(String::new(), |y| y.to_string());
+            let (criterion, threshold, unit) = criterion_text(&r.criterion);
             c.write_record([
-                r.pathway.clone(),
-                r.scenario.clone(),
-                r.season.clone(),
-                r.criterion.clone(),
-                fixed(r.threshold, 2),
-                r.threshold_unit.to_string(),
-                y(r.first_year[0]),
-                y(r.first_year[1]),
-                y(r.first_year[2]),
+                self.pathway(r.pathway)
+                    .map_or("", |p| p.name.as_str())
+                    .to_string(),
+                self.scenario_name(r.scenario).to_string(),
+                self.crossing_group_label(r.group).to_string(),
+                criterion,
+                fixed(threshold, 2),
+                unit.to_string(),
+                y(r.first_year.p05),
+                y(r.first_year.p50),
+                y(r.first_year.p95),
                 r.met_at_baseline.to_string(),
             ])?;
         }
@@ -340,10 +338,12 @@ impl Outlook {
         ])?;
         for r in &self.probabilities {
             c.write_record([
-                r.pathway.clone(),
-                r.scenario.clone(),
+                self.pathway(r.pathway)
+                    .map_or("", |p| p.name.as_str())
+                    .to_string(),
+                self.scenario_name(r.scenario).to_string(),
                 r.year.to_string(),
-                r.season.clone(),
+                self.group_label(r.group).to_string(),
                 r.class_left.clone(),
                 fixed(r.threshold_omega_ar, 2),
                 fixed(r.prob_below_pct, 1),
@@ -391,7 +391,7 @@ struct JsonDoc<'a> {
     quantiles: Vec<JsonRow<'a>>,
     thresholds: JsonThresholds<'a>,
     calcification: JsonCalc<'a>,
-    notes: &'a [String],
+    notes: Vec<String>,
 }
 
 #[derive(Serialize)]
@@ -425,7 +425,7 @@ struct JsonRow<'a> {
     scenario: &'a str,
     year: i32,
     season: &'a str,
-    quantity: &'a str,
+    quantity: Cow<'static, str>,
     p05: Option<f64>,
     p25: Option<f64>,
     p50: Option<f64>,
@@ -448,7 +448,7 @@ struct JsonCrossing<'a> {
     scenario: &'a str,
     season: &'a str,
     kind: CrossingKind,
-    criterion: &'a str,
+    criterion: String,
     threshold: Option<f64>,
     threshold_unit: &'a str,
     first_year_p05: Option<i32>,
@@ -501,18 +501,19 @@ struct JsonCalc<'a> {
     zero_years: Vec<JsonCrossing<'a>>,
 }
 
-fn json_crossing(r: &CrossingRow) -> JsonCrossing<'_> {
+fn json_crossing<'a>(o: &'a Outlook, r: &Crossing) -> JsonCrossing<'a> {
+    let (criterion, threshold, unit) = criterion_text(&r.criterion);
     JsonCrossing {
-        pathway: &r.pathway,
-        scenario: &r.scenario,
-        season: &r.season,
-        kind: r.kind,
-        criterion: &r.criterion,
-        threshold: rounded(r.threshold, 4),
-        threshold_unit: r.threshold_unit,
-        first_year_p05: r.first_year[0],
-        first_year_p50: r.first_year[1],
-        first_year_p95: r.first_year[2],
+        pathway: o.pathway(r.pathway).map_or("", |p| p.name.as_str()),
+        scenario: o.scenario_name(r.scenario),
+        season: o.crossing_group_label(r.group),
+        kind: r.criterion.kind(),
+        criterion,
+        threshold: rounded(threshold, 4),
+        threshold_unit: unit,
+        first_year_p05: r.first_year.p05,
+        first_year_p50: r.first_year.p50,
+        first_year_p95: r.first_year.p95,
         met_at_baseline: r.met_at_baseline,
     }
 }
@@ -558,21 +559,25 @@ impl<'a> From<&'a Outlook> for JsonDoc<'a> {
                 .collect(),
             scenarios: &o.scenarios,
             quantiles: o
-                .rows
-                .iter()
-                .map(|r| JsonRow {
-                    pathway: &r.pathway,
-                    scenario: &r.scenario,
-                    year: r.year,
-                    season: &r.season,
-                    quantity: &r.quantity,
-                    p05: rounded(r.q[0], r.decimals),
-                    p25: rounded(r.q[1], r.decimals),
-                    p50: rounded(r.q[2], r.decimals),
-                    p75: rounded(r.q[3], r.decimals),
-                    p95: rounded(r.q[4], r.decimals),
-                    members: r.members,
-                    outside_fit_pct: r.outside_fit_pct.and_then(|v| rounded(v, 1)),
+                .quantile_rows()
+                .into_iter()
+                .map(|r| {
+                    let d = quantity_decimals(r.quantity);
+                    let q = &r.point.q;
+                    JsonRow {
+                        pathway: r.pathway,
+                        scenario: r.scenario,
+                        year: r.point.year,
+                        season: r.season,
+                        quantity: quantity_name(r.quantity),
+                        p05: rounded(q.p05, d),
+                        p25: rounded(q.p25, d),
+                        p50: rounded(q.p50, d),
+                        p75: rounded(q.p75, d),
+                        p95: rounded(q.p95, d),
+                        members: r.point.members,
+                        outside_fit_pct: r.point.outside_fit_pct.and_then(|v| rounded(v, 1)),
+                    }
                 })
                 .collect(),
             thresholds: JsonThresholds {
@@ -589,17 +594,17 @@ impl<'a> From<&'a Outlook> for JsonDoc<'a> {
                 crossings: o
                     .crossings
                     .iter()
-                    .filter(|r| r.kind == CrossingKind::OmegaArBelow)
-                    .map(json_crossing)
+                    .filter(|r| r.criterion.kind() == CrossingKind::OmegaArBelow)
+                    .map(|r| json_crossing(o, r))
                     .collect(),
                 probabilities: o
                     .probabilities
                     .iter()
                     .map(|r| JsonProbability {
-                        pathway: &r.pathway,
-                        scenario: &r.scenario,
+                        pathway: o.pathway(r.pathway).map_or("", |p| p.name.as_str()),
+                        scenario: o.scenario_name(r.scenario),
                         year: r.year,
-                        season: &r.season,
+                        season: o.group_label(r.group),
                         class_left: &r.class_left,
                         threshold_omega_ar: rounded(r.threshold_omega_ar, 4),
                         prob_below_pct: rounded(r.prob_below_pct, 1),
@@ -633,11 +638,11 @@ impl<'a> From<&'a Outlook> for JsonDoc<'a> {
                 zero_years: o
                     .crossings
                     .iter()
-                    .filter(|r| r.kind == CrossingKind::NetCalcificationZero)
-                    .map(json_crossing)
+                    .filter(|r| r.criterion.kind() == CrossingKind::NetCalcificationZero)
+                    .map(|r| json_crossing(o, r))
                     .collect(),
             },
-            notes: &o.notes,
+            notes: o.notes.iter().map(|n| n.to_string()).collect(),
         }
     }
 }

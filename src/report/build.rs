@@ -8,19 +8,14 @@ use std::path::Path;
 use chrono::{Datelike, Timelike};
 
 use super::model::*;
-use crate::outlook::output::{CrossingKind, CrossingRow};
-use crate::outlook::{Outlook, QUANTILE_LEVELS};
+use crate::outlook::Outlook;
 use crate::site::LoadedSite;
 use crate::site::baseline::Stats;
 use crate::site::schema::MONTH_NAMES;
 
-/// The base case (no local scenario) in outlook rows.
-const BASE_SCENARIO: &str = "none";
-/// The all-records group of the outlook, used for calcification.
-const ANNUAL: &str = crate::outlook::ensemble::AGGREGATE_LABEL;
-/// Horizon years shown in the report's tables when the site projects them (the full series
-/// stays in the figures and in `--data-out`).
-const PREFERRED_HORIZONS: [i32; 5] = [2030, 2040, 2050, 2075, 2100];
+mod from_outlook;
+
+use from_outlook::{horizons, pathway_list, threshold_classes};
 
 /// Per season while counting coverage: solved samples, years, first and last date.
 type SeasonTally = (usize, BTreeSet<i32>, Option<String>, Option<String>);
@@ -194,85 +189,6 @@ fn report_time(runs: &[SiteRun<'_>]) -> Result<ReportTime, String> {
     })
 }
 
-fn threshold_classes(outlook: &Outlook) -> ThresholdClasses {
-    ThresholdClasses {
-        levels: outlook
-            .classes
-            .bands
-            .iter()
-            .filter_map(|b| b.min_omega_ar)
-            .collect(),
-        labels: outlook
-            .classes
-            .bands
-            .iter()
-            .map(|b| b.name.clone())
-            .collect(),
-        citation: outlook.classes.source.clone(),
-    }
-}
-
-/// Table horizons: the preferred years the projection has, else up to five of its years
-/// spread evenly (always including the last).
-fn horizons(years: &[i32]) -> Vec<i32> {
-    let preferred: Vec<i32> = PREFERRED_HORIZONS
-        .iter()
-        .copied()
-        .filter(|y| years.contains(y))
-        .collect();
-    if preferred.len() >= 2 {
-        return preferred;
-    }
-    if years.len() <= 5 {
-        return years.to_vec();
-    }
-    let n = years.len() - 1;
-    let mut out: Vec<i32> = (0..5)
-        .filter_map(|i| years.get(i * n / 4).copied())
-        .collect();
-    out.dedup();
-    out
-}
-
-/// Every pathway of every site, in order of 2100 CO2 (lowest emissions first).
-fn pathway_list(runs: &[SiteRun<'_>]) -> Vec<PathwayInfo> {
-    let mut seen = BTreeSet::new();
-    let mut list: Vec<(f64, PathwayInfo)> = Vec::new();
-    for run in runs {
-        let years = &run.outlook.settings.horizon_years;
-        for p in &run.outlook.pathways {
-            if !seen.insert(p.name.clone()) {
-                continue;
-            }
-            let at = |y: i32| {
-                years
-                    .iter()
-                    .position(|&v| v == y)
-                    .and_then(|i| p.xco2_ppm.get(i))
-            };
-            let last = p.xco2_ppm.last().copied().unwrap_or(f64::NAN);
-            let description = match (at(2050), years.last()) {
-                (Some(v50), Some(&ly)) if ly != 2050 => {
-                    Some(format!("{v50:.0} ppm CO2 in 2050, {last:.0} ppm in {ly}"))
-                }
-                (_, Some(&ly)) => Some(format!("{last:.0} ppm CO2 in {ly}")),
-                _ => None,
-            };
-            list.push((
-                last,
-                PathwayInfo {
-                    id: p.name.clone(),
-                    label: p.name.clone(),
-                    citation: p.source.clone(),
-                    description,
-                },
-            ));
-        }
-    }
-    list.sort_by(|a, b| a.0.total_cmp(&b.0));
-    list.into_iter().map(|(_, p)| p).collect()
-}
-
 fn stat(s: &Stats) -> Option<Stat> {
     Some(Stat {
         mean: s.mean?,
@@ -280,17 +196,6 @@ fn stat(s: &Stats) -> Option<Stat> {
         min: s.min?,
         max: s.max?,
     })
-}
-
-fn quantiles(q: &[f64; 5]) -> Quantiles {
-    debug_assert_eq!(QUANTILE_LEVELS, [5, 25, 50, 75, 95]);
-    Quantiles {
-        p05: q[0],
-        p25: q[1],
-        p50: q[2],
-        p75: q[3],
-        p95: q[4],
-    }
 }
 
 fn months_text(months: &[u32]) -> String {
@@ -485,50 +390,6 @@ fn line_ranges(lines: &[usize]) -> String {
     format!("{}{more}", shown.join(", "))
 }
 
-/// A relationship's name for readers, from its citation: "Chan & Connolly (2013)", or the first
-/// author and "et al." for three or more authors ("Silverman et al. (2009)"); the identifier
-/// when the citation does not start with "Authors (year)".
-fn relationship_name(id: &str, citation: &str) -> String {
-    let Some((authors, rest)) = citation.split_once(" (") else {
-        return id.to_string();
-    };
-    let year: String = rest.chars().take_while(char::is_ascii_digit).collect();
-    if year.len() != 4 || !rest[year.len()..].starts_with(')') || authors.trim().is_empty() {
-        return id.to_string();
-    }
-    let authors = if authors.contains(',') {
-        let first = authors.split(',').next().unwrap_or(authors).trim();
-        format!("{first} et al.")
-    } else {
-        authors.trim().to_string()
-    };
-    format!("{authors} ({year})")
-}
-
-/// "Ω_ar 1–5", or "Ω_ar ≥ 1" when the fitted range has no upper end.
-fn omega_range_text((lo, hi): (f64, f64)) -> String {
-    match (lo.is_finite(), hi.is_finite()) {
-        (true, true) => format!("Ω_ar {lo}–{hi}"),
-        (true, false) => format!("Ω_ar ≥ {lo}"),
-        (false, true) => format!("Ω_ar ≤ {hi}"),
-        (false, false) => "any Ω_ar".to_string(),
-    }
-}
-
-/// A relationship's formula as plain text from the outlook stage ("G = k x (Omega_ar - 1)")
-/// written with the report's symbols ("G = k × (Ω_ar − 1)").
-fn formula_text(text: &str) -> String {
-    text.replace("Omega_ar", "Ω_ar")
-        .replace("Omega_b", "Ω_b")
-        .replace("Omega", "Ω")
-        .replace(" x ", " × ")
-        .replace(" - ", " − ")
-        .replace("= -", "= −")
-        .replace("<=", "≤")
-        .replace(">=", "≥")
-        .replace("degC", "°C")
-}
-
 fn display_path(p: &Path) -> String {
     p.display().to_string()
 }
@@ -542,73 +403,7 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
         .file_stem()
         .map(|s| s.to_string_lossy().into_owned())
         .unwrap_or_else(|| info.name.clone());
-
-    // Coverage.
-    let mut stations = BTreeSet::new();
-    let mut first = None;
-    let mut last = None;
-    let n_seasons = loaded.seasons.len();
-    let mut per_season: Vec<SeasonTally> = vec![(0, BTreeSet::new(), None, None); n_seasons];
-    let mut sorted_times: Vec<_> = loaded.samples.iter().map(|s| s.time).collect();
-    sorted_times.sort();
-    for s in &loaded.samples {
-        stations.insert(s.station.to_string());
-        let date = s.time.format("%Y-%m-%d").to_string();
-        if first.as_ref().is_none_or(|f: &String| date < *f) {
-            first = Some(date.clone());
-        }
-        if last.as_ref().is_none_or(|l: &String| date > *l) {
-            last = Some(date.clone());
-        }
-        if let Some(slot) = per_season.get_mut(s.season) {
-            if s.state.is_some() {
-                slot.0 += 1;
-            }
-            slot.1.insert(s.time.year());
-            if slot.2.as_ref().is_none_or(|f| date < *f) {
-                slot.2 = Some(date.clone());
-            }
-            if slot.3.as_ref().is_none_or(|l| date > *l) {
-                slot.3 = Some(date);
-            }
-        }
-    }
-    let rows_per_season = |i: usize| -> usize {
-        loaded
-            .records
-            .iter()
-            .map(|r| r.rows_per_season.get(i).copied().unwrap_or(0))
-            .sum()
-    };
-    let coverage = Coverage {
-        record_files: loaded
-            .records
-            .iter()
-            .map(|r| display_path(&r.path))
-            .collect(),
-        n_records: loaded.records.iter().map(|r| r.rows).sum(),
-        n_used: loaded.samples.iter().filter(|s| s.state.is_some()).count(),
-        first_date: first.unwrap_or_default(),
-        last_date: last.unwrap_or_default(),
-        stations: stations.into_iter().collect(),
-        seasons: loaded
-            .seasons
-            .iter()
-            .enumerate()
-            .map(|(i, season)| {
-                let slot = per_season.get(i);
-                SeasonCoverage {
-                    season: season.name.clone(),
-                    months: months_text(&season.months),
-                    n_records: rows_per_season(i),
-                    n_used: slot.map_or(0, |s| s.0),
-                    n_years: slot.map_or(0, |s| s.1.len()),
-                    first_date: slot.and_then(|s| s.2.clone()),
-                    last_date: slot.and_then(|s| s.3.clone()),
-                }
-            })
-            .collect(),
-    };
+    let coverage = coverage(loaded);
 
     // QC findings, grouped by kind (the message with its numbers masked) and file, so that
     // a long sensor series gives one line per kind of finding with its row count and lines.
@@ -624,347 +419,28 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
         });
     }
 
-    // Seasonal baseline.
-    let baseline: Vec<SeasonBaseline> = loaded
-        .baseline
-        .seasons
-        .iter()
-        .filter_map(|b| {
-            Some(SeasonBaseline {
-                season: b.name.clone(),
-                n: b.n_solved,
-                omega_ar: stat(&b.omega_ar)?,
-                ph_t: stat(&b.ph_t)?,
-                temp_c: stat(&b.temp_c)?,
-                salinity: stat(&b.salinity),
-                ta: stat(&b.ta_umol_kg),
-                dic: stat(&b.dic_umol_kg),
-                pco2: stat(&b.pco2_uatm),
-                omega_ca: stat(&b.omega_ca),
-            })
-        })
-        .collect();
+    let baseline = season_baselines(loaded);
 
-    // Projection per pathway and season (base case).
+    // The outlook, base case: per pathway and season, then calcification over all records.
     let season_labels: Vec<String> = loaded.seasons.iter().map(|s| s.name.clone()).collect();
-    let projection: Vec<PathwayProjection> = outlook
-        .pathways
-        .iter()
-        .map(|p| PathwayProjection {
-            pathway: p.name.clone(),
-            seasons: season_labels
-                .iter()
-                .filter_map(|season| {
-                    let omega = outlook.series(&p.name, BASE_SCENARIO, season, "omega_ar");
-                    if omega.is_empty() {
-                        return None;
-                    }
-                    let ph = outlook.series(&p.name, BASE_SCENARIO, season, "ph_t");
-                    Some(SeasonSeries {
-                        season: season.clone(),
-                        points: omega
-                            .iter()
-                            .map(|(year, q)| ProjectionPoint {
-                                year: *year,
-                                omega_ar: quantiles(q),
-                                ph_t: ph
-                                    .iter()
-                                    .find(|(y, _)| y == year)
-                                    .map(|(_, q)| quantiles(q)),
-                            })
-                            .collect(),
-                    })
-                })
-                .collect(),
-        })
-        .collect();
-
-    let last_year = outlook
-        .settings
-        .horizon_years
-        .last()
-        .copied()
-        .unwrap_or(2100);
-    let crossing_year =
-        |y: Option<i32>| y.map_or(CrossingYear::NotBy(last_year), CrossingYear::Year);
-    let crossings: Vec<Crossing> = outlook
-        .crossings
-        .iter()
-        .filter(|c: &&CrossingRow| {
-            c.scenario == BASE_SCENARIO
-                && c.kind == CrossingKind::OmegaArBelow
-                && season_labels.contains(&c.season)
-        })
-        .map(|c| {
-            let [early, median, late] = c.first_year;
-            Crossing {
-                pathway: c.pathway.clone(),
-                season: c.season.clone(),
-                threshold: c.threshold,
-                median: if c.met_at_baseline {
-                    CrossingYear::AlreadyBelow
-                } else {
-                    crossing_year(median)
-                },
-                early: if c.met_at_baseline {
-                    CrossingYear::AlreadyBelow
-                } else {
-                    crossing_year(early)
-                },
-                late: crossing_year(late),
-            }
-        })
-        .collect();
-
-    let probabilities: Vec<BelowProbability> = outlook
-        .probabilities
-        .iter()
-        .filter(|p| p.scenario == BASE_SCENARIO && season_labels.contains(&p.season))
-        .map(|p| BelowProbability {
-            pathway: p.pathway.clone(),
-            year: p.year,
-            season: p.season.clone(),
-            threshold: p.threshold_omega_ar,
-            percent: p.prob_below_pct,
-        })
-        .collect();
-
-    // Calcification outlook: relative change over all records, per relationship.
-    let baseline_rate = outlook.calcification_baseline_kg_m2_yr;
-    // Absolute net calcification at the last year, per relationship (site-specific, so it goes
-    // to the site's method notes rather than into the relationship's description).
-    let mut absolute_notes: Vec<String> = Vec::new();
-    let calcification: Vec<CalcificationOutlook> = outlook
-        .relationships
-        .iter()
-        .map(|rel| {
-            let quantity = format!("calc_change_pct_{}", rel.id);
-            let absolute = format!("net_calc_kg_m2_yr_{}", rel.id);
-            let series: Vec<CalcSeries> = outlook
-                .pathways
-                .iter()
-                .map(|p| CalcSeries {
-                    pathway: p.name.clone(),
-                    points: outlook
-                        .rows
-                        .iter()
-                        .filter(|r| {
-                            r.pathway == p.name
-                                && r.scenario == BASE_SCENARIO
-                                && r.season == ANNUAL
-                                && r.quantity == quantity
-                        })
-                        .map(|r| CalcPoint {
-                            year: r.year,
-                            value: quantiles(&r.q),
-                            extrapolated: r.outside_fit_pct.is_some_and(|pct| pct > 0.0),
-                        })
-                        .collect(),
-                })
-                .collect();
-            let mut last_year = None;
-            let at_last: Vec<String> = outlook
-                .pathways
-                .iter()
-                .filter_map(|p| {
-                    let s = outlook.series(&p.name, BASE_SCENARIO, ANNUAL, &absolute);
-                    let (y, q) = s.last()?;
-                    last_year = Some(*y);
-                    Some(format!("{} {:.2}", p.name, q[2]))
-                })
-                .collect();
-            let temp = rel
-                .temp_range_c
-                .map(|(a, b)| format!(", {a}–{b} °C"))
-                .unwrap_or_default();
-            let name = relationship_name(rel.id, rel.source);
-            if let Some(y) = last_year
-                && !at_last.is_empty()
-            {
-                absolute_notes.push(format!("{name}: {} in {y}", at_last.join(", ")));
-            }
-            CalcificationOutlook {
-                relationship: name,
-                citation: rel.source.to_string(),
-                unit: CalcUnit::PercentChange,
-                valid_range: format!("{}{temp}", omega_range_text(rel.omega_range)),
-                baseline: None,
-                series,
-                note: Some(format!(
-                    "{} ({}). Source status: {}. Identifier in site files and in the tables \
-                     of calcisite project: {}.",
-                    formula_text(rel.form_text),
-                    formula_text(rel.scope),
-                    rel.status,
-                    rel.id,
-                )),
-            }
-        })
-        .collect();
-
-    // Local scenarios: the limiting-season median at the table horizons, beside the base case.
+    let projection = from_outlook::projection(outlook, &season_labels);
+    let crossings = from_outlook::crossings(outlook);
+    let probabilities = from_outlook::probabilities(outlook);
+    let (calcification, absolute_notes) = from_outlook::calcification(outlook);
+    // Local scenarios: the limiting season's median at the table horizons.
     let limiting = baseline
         .iter()
         .min_by(|a, b| a.omega_ar.mean.total_cmp(&b.omega_ar.mean))
-        .map(|b| b.season.clone());
-    let local_scenarios: Vec<LocalScenario> = outlook
-        .scenarios
-        .iter()
-        .filter(|s| s.name != BASE_SCENARIO)
-        .map(|s| {
-            let season = limiting.clone().unwrap_or_else(|| ANNUAL.to_string());
-            let mut rows = Vec::new();
-            for p in &outlook.pathways {
-                let with = outlook.series(&p.name, &s.name, &season, "omega_ar");
-                let base = outlook.series(&p.name, BASE_SCENARIO, &season, "omega_ar");
-                for &y in horizons {
-                    if let Some((_, q)) = with.iter().find(|(yy, _)| *yy == y) {
-                        rows.push(ScenarioRow {
-                            pathway: p.name.clone(),
-                            year: y,
-                            season: season.clone(),
-                            omega_ar: quantiles(q),
-                            reference_median: base
-                                .iter()
-                                .find(|(yy, _)| *yy == y)
-                                .map(|(_, q)| q[2]),
-                        });
-                    }
-                }
-            }
-            let offsets: Vec<String> = s
-                .offsets
+        .and_then(|b| {
+            season_labels
                 .iter()
-                .map(|(season, ta, dic)| {
-                    format!("{season}: TA {ta:+} µmol/kg, DIC {dic:+} µmol/kg")
-                })
-                .collect();
-            LocalScenario {
-                name: s.name.clone(),
-                description: offsets.join("; "),
-                rows,
-            }
-        })
-        .collect();
-
-    // Methods.
-    let chemistry: Vec<MethodEntry> = loaded
-        .methods
-        .citations()
-        .into_iter()
-        .map(|(quantity, citation)| MethodEntry {
-            method: citation.split(" (").next().unwrap_or(&citation).to_string(),
-            quantity,
-            citation,
-        })
-        .collect();
-    let st = &outlook.settings;
-    let mut notes: Vec<String> = Vec::new();
-    if let Some(fit) = &loaded.baseline.ta_salinity {
-        let estimated = loaded.samples.iter().filter(|s| s.ta_estimated).count();
-        notes.push(if estimated > 0 {
-            format!(
-                "{estimated} rows without measured TA take TA from the site's bottle samples: {}.",
-                fit.describe_model()
-            )
-        } else {
-            format!(
-                "TA–salinity regression of the bottle samples: TA = {:.1} + {:.2}·S µmol/kg (n {}, r² {:.2}, S {:.2}–{:.2}); every row has measured TA, so it is not used.",
-                fit.intercept_umol_kg, fit.slope, fit.n, fit.r2, fit.salinity_min, fit.salinity_max
-            )
+                .position(|s| *s == b.season)
+                .map(|i| (i, b.season.as_str()))
         });
-    }
-    notes.push(
-        "Depths in metres are taken as that many decibars of hydrostatic pressure.".to_string(),
-    );
-    if !absolute_notes.is_empty() {
-        notes.push(format!(
-            "Net calcification at the baseline rate of {baseline_rate:.2} kg CaCO₃ m⁻² yr⁻¹ \
-             (see Projection settings), ensemble median in kg CaCO₃ m⁻² yr⁻¹: {}.",
-            absolute_notes.join("; ")
-        ));
-    }
-    notes.extend(outlook.notes.iter().map(|n| tidy_numbers(n)));
-    let methods = Methods {
-        chemistry,
-        projection: vec![
-            setting("Observed CO2", st.observed_co2_source.clone()),
-            setting("Disequilibrium", st.disequilibrium.clone()),
-            setting("Warming", if st.warming { "on" } else { "off" }.to_string()),
-            setting(
-                "Ensemble",
-                format!("{} members, seed {}", st.members, st.seed),
-            ),
-            setting("Constant uncertainties", st.constants_uncertainty.clone()),
-            setting(
-                "Measurement uncertainties",
-                st.measurement_uncertainty.clone(),
-            ),
-            setting("Record variability", st.record_variability.clone()),
-            setting(
-                "Baseline calcification",
-                format!(
-                    "{:.2} kg CaCO₃ m⁻² yr⁻¹ ({})",
-                    baseline_rate, outlook.calcification_baseline_source
-                ),
-            ),
-        ],
-        notes,
-    };
-
+    let local_scenarios = from_outlook::local_scenarios(outlook, limiting, horizons);
+    let methods = methods(loaded, outlook, &absolute_notes);
     let samples = if appendix {
-        loaded
-            .samples
-            .iter()
-            .map(|s| {
-                let st = s.state.as_ref();
-                let mut measured = Vec::new();
-                // Names as documented on `SampleRow::measured`.
-                for (name, v) in [
-                    ("ta", s.measured.ta()),
-                    ("dic", s.measured.dic()),
-                    ("ph_t", s.measured.ph_t()),
-                    ("pco2", s.measured.pco2()),
-                    ("fco2", s.measured.fco2()),
-                ] {
-                    if v.is_some() {
-                        measured.push(name.to_string());
-                    }
-                }
-                let mut flags: Vec<String> =
-                    s.flags.labels().iter().map(|l| l.to_string()).collect();
-                if s.ta_estimated {
-                    flags.push("TA from TA–S fit".to_string());
-                }
-                SampleRow {
-                    file: s
-                        .source_file
-                        .file_name()
-                        .map(|f| f.to_string_lossy().into_owned())
-                        .unwrap_or_default(),
-                    row: s.line as u64,
-                    date: s.time.format("%Y-%m-%d %H:%M").to_string(),
-                    station: s.station.to_string(),
-                    season: loaded
-                        .seasons
-                        .get(s.season)
-                        .map(|x| x.name.clone())
-                        .unwrap_or_default(),
-                    temp_c: s.temp_c,
-                    salinity: s.salinity,
-                    pressure_dbar: s.pressure_dbar,
-                    ta: st.map(|x| x.ta),
-                    dic: st.map(|x| x.dic),
-                    ph_t: st.map(|x| x.ph_t),
-                    pco2: st.map(|x| x.pco2),
-                    omega_ar: st.map(|x| x.omega_ar),
-                    omega_ca: st.map(|x| x.omega_ca),
-                    measured,
-                    flags,
-                    used: st.is_some(),
-                }
-            })
-            .collect()
+        sample_rows(loaded)
     } else {
         Vec::new()
     };
@@ -1001,6 +477,191 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
     })
 }
 
+/// Data coverage of the site's records, overall and per season.
+fn coverage(loaded: &LoadedSite) -> Coverage {
+    let mut stations = BTreeSet::new();
+    let mut first = None;
+    let mut last = None;
+    let n_seasons = loaded.seasons.len();
+    let mut per_season: Vec<SeasonTally> = vec![(0, BTreeSet::new(), None, None); n_seasons];
+    let mut sorted_times: Vec<_> = loaded.samples.iter().map(|s| s.time).collect();
+    sorted_times.sort();
+    for s in &loaded.samples {
+        stations.insert(s.station.to_string());
+        let date = s.time.format("%Y-%m-%d").to_string();
+        if first.as_ref().is_none_or(|f: &String| date < *f) {
+            first = Some(date.clone());
+        }
+        if last.as_ref().is_none_or(|l: &String| date > *l) {
+            last = Some(date.clone());
+        }
+        if let Some(slot) = per_season.get_mut(s.season) {
+            if s.state.is_some() {
+                slot.0 += 1;
+            }
+            slot.1.insert(s.time.year());
+            if slot.2.as_ref().is_none_or(|f| date < *f) {
+                slot.2 = Some(date.clone());
+            }
+            if slot.3.as_ref().is_none_or(|l| date > *l) {
+                slot.3 = Some(date);
+            }
+        }
+    }
+    let rows_per_season = |i: usize| -> usize {
+        loaded
+            .records
+            .iter()
+            .map(|r| r.rows_per_season.get(i).copied().unwrap_or(0))
+            .sum()
+    };
+    Coverage {
+        record_files: loaded
+            .records
+            .iter()
+            .map(|r| display_path(&r.path))
+            .collect(),
+        n_records: loaded.records.iter().map(|r| r.rows).sum(),
+        n_used: loaded.samples.iter().filter(|s| s.state.is_some()).count(),
+        first_date: first.unwrap_or_default(),
+        last_date: last.unwrap_or_default(),
+        stations: stations.into_iter().collect(),
+        seasons: loaded
+            .seasons
+            .iter()
+            .enumerate()
+            .map(|(i, season)| {
+                let slot = per_season.get(i);
+                SeasonCoverage {
+                    season: season.name.clone(),
+                    months: months_text(&season.months),
+                    n_records: rows_per_season(i),
+                    n_used: slot.map_or(0, |s| s.0),
+                    n_years: slot.map_or(0, |s| s.1.len()),
+                    first_date: slot.and_then(|s| s.2.clone()),
+                    last_date: slot.and_then(|s| s.3.clone()),
+                }
+            })
+            .collect(),
+    }
+}
+
+/// Per-season statistics of the records.
+fn season_baselines(loaded: &LoadedSite) -> Vec<SeasonBaseline> {
+    loaded
+        .baseline
+        .seasons
+        .iter()
+        .filter_map(|b| {
+            Some(SeasonBaseline {
+                season: b.name.clone(),
+                n: b.n_solved,
+                omega_ar: stat(&b.omega_ar)?,
+                ph_t: stat(&b.ph_t)?,
+                temp_c: stat(&b.temp_c)?,
+                salinity: stat(&b.salinity),
+                ta: stat(&b.ta_umol_kg),
+                dic: stat(&b.dic_umol_kg),
+                pco2: stat(&b.pco2_uatm),
+                omega_ca: stat(&b.omega_ca),
+            })
+        })
+        .collect()
+}
+
+/// The methods of one site: the chemistry's citations, the projection settings and notes.
+fn methods(loaded: &LoadedSite, outlook: &Outlook, absolute_notes: &[String]) -> Methods {
+    let chemistry: Vec<MethodEntry> = loaded
+        .methods
+        .citations()
+        .into_iter()
+        .map(|(quantity, citation)| MethodEntry {
+            method: citation.split(" (").next().unwrap_or(&citation).to_string(),
+            quantity,
+            citation,
+        })
+        .collect();
+    let mut notes: Vec<String> = Vec::new();
+    if let Some(fit) = &loaded.baseline.ta_salinity {
+        let estimated = loaded.samples.iter().filter(|s| s.ta_estimated).count();
+        notes.push(if estimated > 0 {
+            format!(
+                "{estimated} rows without measured TA take TA from the site's bottle samples: {}.",
+                fit.describe_model()
+            )
+        } else {
+            format!(
+                "TA–salinity regression of the bottle samples: TA = {:.1} + {:.2}·S µmol/kg (n {}, r² {:.2}, S {:.2}–{:.2}); every row has measured TA, so it is not used.",
+                fit.intercept_umol_kg, fit.slope, fit.n, fit.r2, fit.salinity_min, fit.salinity_max
+            )
+        });
+    }
+    notes.push(
+        "Depths in metres are taken as that many decibars of hydrostatic pressure.".to_string(),
+    );
+    notes.extend(from_outlook::notes(outlook, absolute_notes));
+    Methods {
+        chemistry,
+        projection: from_outlook::settings(outlook),
+        notes,
+    }
+}
+
+/// Every sample for the chemistry appendix.
+fn sample_rows(loaded: &LoadedSite) -> Vec<SampleRow> {
+    loaded
+        .samples
+        .iter()
+        .map(|s| {
+            let st = s.state.as_ref();
+            let mut measured = Vec::new();
+            // Names as documented on `SampleRow::measured`.
+            for (name, v) in [
+                ("ta", s.measured.ta()),
+                ("dic", s.measured.dic()),
+                ("ph_t", s.measured.ph_t()),
+                ("pco2", s.measured.pco2()),
+                ("fco2", s.measured.fco2()),
+            ] {
+                if v.is_some() {
+                    measured.push(name.to_string());
+                }
+            }
+            let mut flags: Vec<String> = s.flags.labels().iter().map(|l| l.to_string()).collect();
+            if s.ta_estimated {
+                flags.push("TA from TA–S fit".to_string());
+            }
+            SampleRow {
+                file: s
+                    .source_file
+                    .file_name()
+                    .map(|f| f.to_string_lossy().into_owned())
+                    .unwrap_or_default(),
+                row: s.line as u64,
+                date: s.time.format("%Y-%m-%d %H:%M").to_string(),
+                station: s.station.to_string(),
+                season: loaded
+                    .seasons
+                    .get(s.season)
+                    .map(|x| x.name.clone())
+                    .unwrap_or_default(),
+                temp_c: s.temp_c,
+                salinity: s.salinity,
+                pressure_dbar: s.pressure_dbar,
+                ta: st.map(|x| x.ta),
+                dic: st.map(|x| x.dic),
+                ph_t: st.map(|x| x.ph_t),
+                pco2: st.map(|x| x.pco2),
+                omega_ar: st.map(|x| x.omega_ar),
+                omega_ca: st.map(|x| x.omega_ca),
+                measured,
+                flags,
+                used: st.is_some(),
+            }
+        })
+        .collect()
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -1010,32 +671,6 @@ mod tests {
         assert_eq!(line_ranges(&[5, 3, 4, 9]), "lines 3–5, line 9");
         let many: Vec<usize> = (0..20).map(|i| i * 3).collect();
         assert!(line_ranges(&many).ends_with("and 14 more runs"));
-    }
-
-    #[test]
-    fn relationship_names_come_from_the_citation() {
-        assert_eq!(
-            relationship_name(
-                "chan2013",
-                "Chan & Connolly (2013), Global Change Biology 19:282"
-            ),
-            "Chan & Connolly (2013)"
-        );
-        assert_eq!(
-            relationship_name(
-                "s2009",
-                "Silverman, Lazar, Cao, Caldeira & Erez (2009), GRL 36"
-            ),
-            "Silverman et al. (2009)"
-        );
-        assert_eq!(relationship_name("x", "no year here"), "x");
-        assert_eq!(relationship_name("x", "Someone (in press)"), "x");
-        assert_eq!(omega_range_text((1.0, f64::INFINITY)), "Ω_ar ≥ 1");
-        assert_eq!(omega_range_text((1.0, 5.0)), "Ω_ar 1–5");
-        assert_eq!(
-            formula_text("G = k x (Omega_ar - 1); G = 0 for Omega_ar <= 1, 5-37 degC"),
-            "G = k × (Ω_ar − 1); G = 0 for Ω_ar ≤ 1, 5-37 °C"
-        );
     }
 
     #[test]
@@ -1049,16 +684,5 @@ mod tests {
             "x 1.123457 and v2.0000001"
         );
         assert_eq!(tidy_numbers("lines 3–5, 9."), "lines 3–5, 9.");
-    }
-
-    #[test]
-    fn table_horizons() {
-        let every5: Vec<i32> = (2025..=2100).step_by(5).collect();
-        assert_eq!(horizons(&every5), vec![2030, 2040, 2050, 2075, 2100]);
-        assert_eq!(horizons(&[2027, 2033]), vec![2027, 2033]);
-        assert_eq!(
-            horizons(&[2031, 2041, 2051, 2061, 2071, 2081, 2091]),
-            vec![2031, 2041, 2061, 2071, 2091]
-        );
     }
 }

@@ -1,0 +1,304 @@
+//! Everything a run needs before the first member is solved: the groups (seasons and the
+//! aggregate) with their baselines, the base case and local scenarios, the pathway values and
+//! record anchors, and the notes found on the way.
+
+use std::collections::BTreeSet;
+
+use crate::chem::{self, Constants, Input};
+
+use super::super::projection::RecordAnchor;
+use super::super::result::{GroupId, Note};
+use super::super::scenario::Offsets;
+use super::super::{OutlookError, ProjectionSettings, SiteInput};
+use super::settings::{input_err, validate};
+use super::{AGGREGATE_LABEL, BASE_SCENARIO};
+
+/// Stream key of the aggregate group (season streams use the season index).
+const AGGREGATE_KEY: u64 = u64::MAX;
+
+/// A season (or the aggregate) with its records and baseline.
+#[derive(Clone, Debug)]
+pub(super) struct Group {
+    pub id: GroupId,
+    pub label: String,
+    /// Random-stream key.
+    pub key: u64,
+    /// Indices into `site.records`.
+    pub records: Vec<usize>,
+    /// Mean Omega_ar of the records at sampling (central constants).
+    pub omega_b: f64,
+    /// Mean temperature of the records, °C.
+    pub temp_b: f64,
+    pub sample_year_max: i32,
+}
+
+impl Group {
+    pub fn aggregate(&self) -> bool {
+        self.id == GroupId::Aggregate
+    }
+}
+
+/// A variant of the run: the base case or one local scenario.
+#[derive(Clone, Debug)]
+pub(super) struct Variant {
+    pub name: String,
+    /// Offsets per season index (empty: none).
+    pub offsets: Vec<Offsets>,
+    pub start_year: Option<i32>,
+}
+
+impl Variant {
+    pub fn offsets_for(&self, season: usize, year: i32) -> Option<&Offsets> {
+        if self.start_year.is_some_and(|s| year < s) {
+            return None;
+        }
+        self.offsets.get(season).filter(|o| !o.is_zero())
+    }
+}
+
+/// Validated inputs shared by every task.
+pub(super) struct Prepared<'a> {
+    pub site: &'a SiteInput,
+    pub s: &'a ProjectionSettings,
+    pub groups: Vec<Group>,
+    /// The base case first, then the local scenarios.
+    pub variants: Vec<Variant>,
+    /// anchors[pathway][record]
+    pub anchors: Vec<Vec<RecordAnchor>>,
+    /// xco2[pathway][year]
+    pub xco2: Vec<Vec<f64>>,
+    pub notes: Vec<Note>,
+}
+
+impl<'a> Prepared<'a> {
+    pub fn new(
+        site: &'a SiteInput,
+        s: &'a ProjectionSettings,
+    ) -> Result<Prepared<'a>, OutlookError> {
+        validate(site, s)?;
+        let variants = variants(site, s)?;
+        // Pathway values at every horizon year and anchors at every sampling year.
+        let mut anchors = Vec::with_capacity(s.pathways.len());
+        let mut xco2 = Vec::with_capacity(s.pathways.len());
+        for p in &s.pathways {
+            let xs = s
+                .years
+                .iter()
+                .map(|&y| p.pathway.xco2_ppm(&site.observed, y))
+                .collect::<Result<Vec<f64>, _>>()?;
+            xco2.push(xs);
+            anchors.push(
+                site.records
+                    .iter()
+                    .map(|r| RecordAnchor::new(r, &p.pathway, &site.observed))
+                    .collect::<Result<Vec<_>, _>>()?,
+            );
+        }
+        let baseline = baseline_omega(site)?;
+        let mut notes = Vec::new();
+        let groups = groups(site, &baseline, &mut notes);
+        notes.extend(relationship_notes(s, &groups));
+        notes.extend(range_survey(site, s));
+        Ok(Prepared {
+            site,
+            s,
+            groups,
+            variants,
+            anchors,
+            xco2,
+            notes,
+        })
+    }
+
+    pub fn n_members(&self, g: &Group) -> usize {
+        if self.s.ensemble.members == 0 {
+            g.records.len()
+        } else {
+            self.s.ensemble.members
+        }
+    }
+}
+
+/// The base case and the local scenarios, checked.
+fn variants(site: &SiteInput, s: &ProjectionSettings) -> Result<Vec<Variant>, OutlookError> {
+    let mut variants = vec![Variant {
+        name: BASE_SCENARIO.to_string(),
+        offsets: Vec::new(),
+        start_year: None,
+    }];
+    for sc in &s.scenarios {
+        let name = sc.name.trim();
+        if name.is_empty() {
+            return Err(input_err("a local scenario needs a name"));
+        }
+        if name.eq_ignore_ascii_case(BASE_SCENARIO) || variants.iter().any(|v| v.name == name) {
+            return Err(input_err(format!(
+                "local scenario name \"{name}\" is reserved or used twice"
+            )));
+        }
+        let offsets = sc
+            .resolve(&site.seasons)
+            .map_err(|e| input_err(e.to_string()))?;
+        variants.push(Variant {
+            name: name.to_string(),
+            offsets,
+            start_year: sc.start_year,
+        });
+    }
+    Ok(variants)
+}
+
+/// Omega_ar of every record at its sampling conditions (central constants).
+fn baseline_omega(site: &SiteInput) -> Result<Vec<f64>, OutlookError> {
+    site.records
+        .iter()
+        .map(|r| {
+            let cond = r.conditions_at(r.temp_c);
+            let k = Constants::new(&cond, &site.methods);
+            chem::solve_pair(Input::Ta(r.ta), Input::Pco2(r.pco2), &k)
+                .map(|st| st.omega_ar)
+                .map_err(|e| {
+                    input_err(format!(
+                        "{}: the record's state at sampling cannot be solved from TA {} \
+                         umol/kg and pCO2 {} uatm: {e}",
+                        r.label, r.ta, r.pco2
+                    ))
+                })
+        })
+        .collect()
+}
+
+/// The seasons with records (in site order), then the all-records aggregate.
+fn groups(site: &SiteInput, baseline: &[f64], notes: &mut Vec<Note>) -> Vec<Group> {
+    let make_group = |id: GroupId, label: String, key: u64, records: Vec<usize>| {
+        let n = records.len() as f64;
+        let omega_b = records.iter().filter_map(|&i| baseline.get(i)).sum::<f64>() / n;
+        let temp_b = records
+            .iter()
+            .filter_map(|&i| site.records.get(i))
+            .map(|r| r.temp_c)
+            .sum::<f64>()
+            / n;
+        let sample_year_max = records
+            .iter()
+            .filter_map(|&i| site.records.get(i))
+            .map(|r| r.sample_year)
+            .max()
+            .unwrap_or(0);
+        Group {
+            id,
+            label,
+            key,
+            records,
+            omega_b,
+            temp_b,
+            sample_year_max,
+        }
+    };
+    let mut groups = Vec::new();
+    for (si, label) in site.seasons.iter().enumerate() {
+        let recs: Vec<usize> = site
+            .records
+            .iter()
+            .enumerate()
+            .filter(|(_, r)| r.season == si)
+            .map(|(i, _)| i)
+            .collect();
+        if recs.is_empty() {
+            notes.push(Note::SeasonWithoutRecords {
+                season: label.clone(),
+            });
+            continue;
+        }
+        groups.push(make_group(
+            GroupId::Season(si),
+            label.clone(),
+            si as u64,
+            recs,
+        ));
+    }
+    let agg_label = if site.seasons.iter().any(|s| s == AGGREGATE_LABEL) {
+        "all records".to_string()
+    } else {
+        AGGREGATE_LABEL.to_string()
+    };
+    groups.push(make_group(
+        GroupId::Aggregate,
+        agg_label,
+        AGGREGATE_KEY,
+        (0..site.records.len()).collect(),
+    ));
+    groups
+}
+
+/// Relationships that cannot be scaled at a group's baseline, or whose fitted range the
+/// baseline leaves.
+fn relationship_notes(s: &ProjectionSettings, groups: &[Group]) -> Vec<Note> {
+    let mut notes = Vec::new();
+    for rel in &s.calcification.relationships {
+        for g in groups {
+            if rel
+                .relative(g.omega_b, g.temp_b, g.omega_b, g.temp_b)
+                .is_none()
+            {
+                notes.push(Note::RelationshipNotScalable {
+                    relationship: rel.rel_id(),
+                    group: g.label.clone(),
+                    baseline_omega_ar: g.omega_b,
+                });
+            }
+            if !rel.in_range(g.omega_b, g.temp_b) {
+                notes.push(Note::BaselineOutsideFit {
+                    relationship: rel.rel_id(),
+                    group: g.label.clone(),
+                    baseline_omega_ar: g.omega_b,
+                    baseline_temp_c: g.temp_b,
+                });
+            }
+        }
+    }
+    notes
+}
+
+/// Notes on the record-year conditions (record temperature plus any warming) that lie
+/// outside a constant set's fitted range: they are solved anyway and flagged here, with a
+/// count and up to three examples.
+fn range_survey(site: &SiteInput, s: &ProjectionSettings) -> Option<Note> {
+    let mut total = 0usize;
+    let mut outside = 0usize;
+    let mut examples: BTreeSet<String> = BTreeSet::new();
+    let specs: Vec<_> = if s.warming {
+        s.pathways.iter().collect()
+    } else {
+        s.pathways.iter().take(1).collect()
+    };
+    for spec in specs {
+        for rec in &site.records {
+            let years = std::iter::once(None).chain(s.years.iter().map(|&y| Some(y)));
+            for year in years {
+                let temp = match year {
+                    Some(y) if s.warming => {
+                        rec.temp_c + spec.warming.change_between(rec.sample_year, y)
+                    }
+                    Some(_) => continue,
+                    None => rec.temp_c,
+                };
+                total += 1;
+                let w = site.methods.range_warnings(&rec.conditions_at(temp));
+                if let Some(first) = w.first() {
+                    outside += 1;
+                    examples.insert(format!("{}: {first}", rec.label));
+                    if examples.len() > 3 {
+                        examples.pop_last();
+                    }
+                }
+            }
+        }
+    }
+    (outside > 0).then(|| Note::ConstantsRange {
+        outside,
+        total,
+        warming: s.warming,
+        examples: examples.into_iter().collect(),
+    })
+}

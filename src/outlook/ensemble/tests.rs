@@ -1,0 +1,509 @@
+//! Tests of the whole ensemble run on a small invented site.
+
+use super::*;
+use crate::chem::{self, Constants, Input, MethodSet};
+use crate::outlook::result::{
+    Criterion, CrossingGroup, CrossingKind, Outlook, Quantity, RelationshipId, ScenarioId,
+};
+use crate::outlook::{
+    Disequilibrium, LocalScenario, Observed, Offsets, OutputFormat, OutputTable, Pathway,
+    PathwaySpec, ProjectionRecord, ProjectionSettings, SiteInput, project_record,
+};
+
+/// The quantile series of one quantity: (year, [p05, p25, p50, p75, p95]); empty when absent.
+fn series(
+    o: &Outlook,
+    pathway: &str,
+    scenario: &str,
+    group: &str,
+    q: Quantity,
+) -> Vec<(i32, [f64; 5])> {
+    let sid = o
+        .scenario_ids()
+        .find(|(_, n)| *n == scenario)
+        .map(|(id, _)| id)
+        .unwrap_or(ScenarioId::Base);
+    match (o.pathway_id(pathway), o.group_id(group)) {
+        (Some(p), Some(g)) => o
+            .series(p, sid, g, q)
+            .map(|s| s.points.iter().map(|pt| (pt.year, pt.q.levels())).collect())
+            .unwrap_or_default(),
+        _ => Vec::new(),
+    }
+}
+
+fn rec(season: usize, i: usize, t: f64, ta: f64, pco2: f64) -> ProjectionRecord {
+    ProjectionRecord {
+        label: format!("records.csv line {}", i + 2),
+        season,
+        sample_year: 2024,
+        temp_c: t,
+        salinity: 35.0,
+        pressure_dbar: 2.0,
+        silicate: 2.0,
+        phosphate: 0.2,
+        ta,
+        pco2,
+        measured: None,
+    }
+}
+
+fn site() -> SiteInput {
+    let records = vec![
+        rec(0, 0, 26.0, 2290.0, 410.0),
+        rec(0, 1, 26.5, 2300.0, 420.0),
+        rec(0, 2, 27.0, 2310.0, 405.0),
+        rec(1, 3, 28.5, 2270.0, 440.0),
+        rec(1, 4, 29.0, 2280.0, 450.0),
+        rec(1, 5, 29.5, 2275.0, 445.0),
+    ];
+    SiteInput {
+        name: "Invented test reef".into(),
+        seasons: vec!["dry".into(), "wet".into()],
+        records,
+        methods: MethodSet::default(),
+        observed: Observed::noaa(),
+    }
+}
+
+fn settings(site: &SiteInput, members: usize) -> ProjectionSettings {
+    let mut s = ProjectionSettings::defaults_for(site);
+    s.ensemble.members = members;
+    s.years = vec![2025, 2030, 2040, 2050, 2060, 2070, 2080, 2090, 2100];
+    s
+}
+
+fn all_bytes(o: &Outlook) -> Vec<u8> {
+    let mut v = Vec::new();
+    for t in [
+        OutputTable::Quantiles,
+        OutputTable::Crossings,
+        OutputTable::Thresholds,
+    ] {
+        o.write(&mut v, OutputFormat::Csv, t).unwrap();
+    }
+    o.write(&mut v, OutputFormat::Json, OutputTable::Quantiles)
+        .unwrap();
+    v
+}
+
+#[test]
+fn results_do_not_depend_on_thread_count() {
+    let site = site();
+    let mut s = settings(&site, 150);
+    s.ensemble.threads = Some(1);
+    let a = run(&site, &s, &NoProgress).unwrap();
+    s.ensemble.threads = Some(2);
+    let b = run(&site, &s, &NoProgress).unwrap();
+    s.ensemble.threads = Some(3);
+    let c = run(&site, &s, &NoProgress).unwrap();
+    assert_eq!(all_bytes(&a), all_bytes(&b));
+    assert_eq!(all_bytes(&a), all_bytes(&c));
+}
+
+#[test]
+fn seed_reproduces_and_changes_the_ensemble() {
+    let site = site();
+    let s = settings(&site, 100);
+    let a = all_bytes(&run(&site, &s, &NoProgress).unwrap());
+    let b = all_bytes(&run(&site, &s, &NoProgress).unwrap());
+    assert_eq!(a, b);
+    let mut s2 = s.clone();
+    s2.ensemble.seed += 1;
+    let c = all_bytes(&run(&site, &s2, &NoProgress).unwrap());
+    assert_ne!(a, c);
+}
+
+/// Common practice: the higher pathway is never above the lower one at the same member
+/// (same draws), wherever its atmospheric CO2 is at least as high (warming off).
+#[test]
+fn higher_pathway_never_above_lower_at_same_member() {
+    let site = site();
+    let mut s = settings(&site, 1000);
+    s.pathways.insert(
+        0,
+        PathwaySpec::with_default_warming(Pathway::builtin("steady").unwrap(), &site.observed),
+    );
+    let xco2: Vec<Vec<f64>> = s
+        .pathways
+        .iter()
+        .map(|p| {
+            s.years
+                .iter()
+                .map(|&y| p.pathway.xco2_ppm(&site.observed, y).unwrap())
+                .collect()
+        })
+        .collect();
+    for group in ["dry", "wet", AGGREGATE_LABEL] {
+        for member in (0..1000).step_by(97) {
+            let states: Vec<Vec<f64>> = (0..s.pathways.len())
+                .map(|p| {
+                    member_states(&site, &s, p, group, member).unwrap()[0]
+                        .iter()
+                        .map(|r| r.as_ref().unwrap().omega_ar)
+                        .collect()
+                })
+                .collect();
+            for yi in 0..s.years.len() {
+                for a in 0..s.pathways.len() {
+                    for b in 0..s.pathways.len() {
+                        if xco2[a][yi] >= xco2[b][yi] {
+                            assert!(
+                                states[a][yi] <= states[b][yi] + 1e-12,
+                                "{group} member {member} year {}",
+                                s.years[yi]
+                            );
+                        }
+                    }
+                }
+            }
+        }
+    }
+}
+
+#[test]
+fn ensemble_off_reproduces_the_deterministic_projection() {
+    let mut site = site();
+    site.records.truncate(1);
+    site.seasons.truncate(1);
+    let s = settings(&site, 0);
+    let o = run(&site, &s, &NoProgress).unwrap();
+    for (p, spec) in s.pathways.iter().enumerate() {
+        let series = series(
+            &o,
+            &spec.pathway.name,
+            BASE_SCENARIO,
+            "dry",
+            Quantity::OmegaAr,
+        );
+        assert_eq!(series.len(), s.years.len());
+        for (yi, (year, q)) in series.iter().enumerate() {
+            let pt = project_record(
+                &site.records[0],
+                &spec.pathway,
+                &site.observed,
+                None,
+                &site.methods,
+                Disequilibrium::Ratio,
+                None,
+                *year,
+            )
+            .unwrap();
+            assert_eq!(*year, s.years[yi]);
+            for v in q {
+                assert!((v - pt.state.omega_ar).abs() < 1e-12, "pathway {p}");
+            }
+        }
+    }
+}
+
+/// Common practice: the ensemble spread is dominated by the constants' uncertainty
+/// (Orr et al. 2018 find u(Omega_ar) ≈ 0.16 with constants, ≈ 0.03 without); turning the
+/// constants off must narrow the 5–95 % range several-fold for a single record.
+#[test]
+fn constants_dominate_the_spread() {
+    let mut site = site();
+    site.records.truncate(1);
+    site.seasons.truncate(1);
+    let mut s = settings(&site, 2000);
+    let o = run(&site, &s, &NoProgress).unwrap();
+    let w = |o: &Outlook| {
+        let q = series(o, "SSP2-4.5", BASE_SCENARIO, "dry", Quantity::OmegaAr)[0].1;
+        q[4] - q[0]
+    };
+    let with = w(&o);
+    s.ensemble.constants = false;
+    let without = w(&run(&site, &s, &NoProgress).unwrap());
+    assert!(
+        with > 0.35 && with < 0.7,
+        "5-95 % width with constants {with}"
+    );
+    assert!(without < with / 3.0, "{without} vs {with}");
+}
+
+#[test]
+fn scenario_offsets_raise_omega_member_by_member() {
+    let site = site();
+    let mut s = settings(&site, 200);
+    s.scenarios.push(LocalScenario {
+        name: "alkalinity +30".into(),
+        all_seasons: Offsets {
+            ta_umol_kg: 30.0,
+            dic_umol_kg: 0.0,
+        },
+        by_season: vec![],
+        start_year: Some(2040),
+    });
+    let o = run(&site, &s, &NoProgress).unwrap();
+    for season in ["dry", "wet", AGGREGATE_LABEL] {
+        let base = series(&o, "SSP2-4.5", BASE_SCENARIO, season, Quantity::OmegaAr);
+        let with = series(&o, "SSP2-4.5", "alkalinity +30", season, Quantity::OmegaAr);
+        for ((y, qb), (_, qs)) in base.iter().zip(&with) {
+            if *y < 2040 {
+                assert_eq!(qb, qs);
+            } else {
+                assert!(qs[2] > qb[2] + 0.05, "{season} {y}");
+            }
+        }
+    }
+    assert_eq!(o.scenarios.len(), 1);
+}
+
+#[test]
+fn crossing_rows_follow_the_quantile_series() {
+    let site = site();
+    let s = settings(&site, 300);
+    let o = run(&site, &s, &NoProgress).unwrap();
+    for row in o
+        .crossings
+        .iter()
+        .filter(|r| r.criterion.kind() == CrossingKind::OmegaArBelow)
+    {
+        let Criterion::OmegaArBelow {
+            threshold_omega_ar, ..
+        } = row.criterion
+        else {
+            unreachable!()
+        };
+        let group = match row.group {
+            CrossingGroup::WorstSeason => {
+                // The worst season crosses no later than any season.
+                for season in ["dry", "wet"] {
+                    let id = o.group_id(season).unwrap();
+                    let other = o
+                        .crossings
+                        .iter()
+                        .find(|r| {
+                            r.group == CrossingGroup::Group(id)
+                                && r.pathway == row.pathway
+                                && r.criterion == row.criterion
+                                && r.scenario == row.scenario
+                        })
+                        .unwrap();
+                    if let Some(y) = other.first_year.p50 {
+                        assert!(row.first_year.p50.is_some_and(|w| w <= y));
+                    }
+                }
+                continue;
+            }
+            CrossingGroup::Group(g) => g,
+        };
+        let series = o
+            .series(row.pathway, row.scenario, group, Quantity::OmegaAr)
+            .unwrap();
+        let expect = series
+            .points
+            .iter()
+            .find(|pt| pt.q.p50 < threshold_omega_ar)
+            .map(|pt| pt.year);
+        assert_eq!(row.first_year.p50, expect);
+        // p05 crosses no later than p50, p50 no later than p95.
+        if let (Some(a), Some(b)) = (row.first_year.p05, row.first_year.p50) {
+            assert!(a <= b);
+        }
+    }
+    // Probabilities are percentages and the class of the median is reported.
+    assert!(
+        o.probabilities
+            .iter()
+            .all(|p| (0.0..=100.0).contains(&p.prob_below_pct))
+    );
+}
+
+/// A record measured as TA + DIC keeps its measured DIC at the sampling year under every
+/// draw of the constants (the pair is re-solved per member); one measured as TA + pCO2
+/// keeps its pCO2 instead, and its DIC varies with the constants.
+#[test]
+fn members_respect_the_measured_pair() {
+    use crate::outlook::projection::Measurement;
+    let mut site = site();
+    site.records.truncate(1);
+    site.seasons.truncate(1);
+    let k = Constants::new(&site.records[0].conditions_at(26.0), &site.methods);
+    let st = chem::solve_pair(Input::Ta(2290.0), Input::Pco2(410.0), &k).unwrap();
+    let mut s = settings(&site, 50);
+    s.years = vec![2024, 2050];
+    s.ensemble.measurement = MeasurementUncertainty {
+        ta_umol_kg: 0.0,
+        dic_umol_kg: 0.0,
+        ph: 0.0,
+        pco2_pct: 0.0,
+    };
+    let dic_spread = |site: &SiteInput| {
+        let dics: Vec<f64> = (0..50)
+            .map(|m| {
+                member_states(site, &s, 2, "dry", m).unwrap()[0][0]
+                    .as_ref()
+                    .unwrap()
+                    .dic
+            })
+            .collect();
+        let pco2: Vec<f64> = (0..50)
+            .map(|m| {
+                member_states(site, &s, 2, "dry", m).unwrap()[0][0]
+                    .as_ref()
+                    .unwrap()
+                    .pco2
+            })
+            .collect();
+        let span = |v: &[f64]| {
+            v.iter().cloned().fold(f64::MIN, f64::max) - v.iter().cloned().fold(f64::MAX, f64::min)
+        };
+        (span(&dics), span(&pco2))
+    };
+    let (d, p) = dic_spread(&site);
+    assert!(
+        d > 1.0 && p < 1e-9,
+        "TA+pCO2 record: DIC span {d}, pCO2 span {p}"
+    );
+    site.records[0].measured = Some(Measurement {
+        a: Input::Ta(2290.0),
+        b: Input::Dic(st.dic),
+        sd_a: None,
+        sd_b: None,
+    });
+    let (d, p) = dic_spread(&site);
+    assert!(
+        d < 1e-6 && p > 1.0,
+        "TA+DIC record: DIC span {d}, pCO2 span {p}"
+    );
+}
+
+#[test]
+fn calcification_zero_year_under_extreme_pathway() {
+    let mut site = site();
+    site.records.truncate(1);
+    site.seasons.truncate(1);
+    let mut s = settings(&site, 0);
+    s.pathways = vec![PathwaySpec::with_default_warming(
+        Pathway::user("extreme", &[(2030, 600.0), (2100, 3000.0)]).unwrap(),
+        &site.observed,
+    )];
+    let o = run(&site, &s, &NoProgress).unwrap();
+    let omega = series(&o, "extreme", BASE_SCENARIO, "dry", Quantity::OmegaAr);
+    let first_unsat = omega.iter().find(|(_, q)| q[2] <= 1.0).map(|(y, _)| *y);
+    assert!(first_unsat.is_some(), "{omega:?}");
+    let dry = CrossingGroup::Group(o.group_id("dry").unwrap());
+    let zero_year = |id: &'static str| {
+        o.crossings
+            .iter()
+            .find(|r| {
+                r.group == dry && r.criterion == Criterion::NetCalcificationZero(RelationshipId(id))
+            })
+            .unwrap()
+            .first_year
+            .p50
+    };
+    for id in ["silverman2009", "langdon2005"] {
+        assert_eq!(zero_year(id), first_unsat, "{id}");
+    }
+    assert_eq!(
+        zero_year("chan2013"),
+        None,
+        "a -15 %/unit line cannot reach -100 % here"
+    );
+    // Rows below Omega_ar 1 are flagged as extrapolation.
+    let flagged = o
+        .series
+        .iter()
+        .filter(|s| s.quantity == Quantity::NetCalc(RelationshipId("silverman2009")))
+        .flat_map(|s| s.points.iter())
+        .filter(|pt| Some(pt.year) >= first_unsat)
+        .all(|pt| pt.outside_fit_pct == Some(100.0));
+    assert!(flagged);
+}
+
+#[test]
+fn bad_settings_give_clear_errors() {
+    let site = site();
+    let mut s = settings(&site, 10);
+    s.ensemble.members = MAX_MEMBERS + 1;
+    assert!(
+        run(&site, &s, &NoProgress)
+            .unwrap_err()
+            .to_string()
+            .contains("limit")
+    );
+    let mut s = settings(&site, 10);
+    s.ensemble.threads = Some(0);
+    assert!(run(&site, &s, &NoProgress).is_err());
+    let mut s = settings(&site, 10);
+    s.years = vec![2050, 2040];
+    assert!(
+        run(&site, &s, &NoProgress)
+            .unwrap_err()
+            .to_string()
+            .contains("increase")
+    );
+    let mut s = settings(&site, 10);
+    s.pathways.push(s.pathways[0].clone());
+    assert!(
+        run(&site, &s, &NoProgress)
+            .unwrap_err()
+            .to_string()
+            .contains("twice")
+    );
+    let mut s = settings(&site, 10);
+    s.years = vec![2120];
+    let e = run(&site, &s, &NoProgress).unwrap_err().to_string();
+    assert!(e.contains("2120") && e.contains("SSP1-1.9"), "{e}");
+    let mut bad = site.clone();
+    bad.records[2].pco2 = -5.0;
+    let e = run(&bad, &settings(&bad, 10), &NoProgress)
+        .unwrap_err()
+        .to_string();
+    assert!(e.contains("line 4") && e.contains("pco2"), "{e}");
+    let mut s = settings(&site, 10);
+    s.scenarios.push(LocalScenario {
+        name: "none".into(),
+        ..Default::default()
+    });
+    assert!(run(&site, &s, &NoProgress).is_err());
+}
+
+#[test]
+fn outputs_carry_units_and_fixed_decimals() {
+    let site = site();
+    let s = settings(&site, 50);
+    let o = run(&site, &s, &NoProgress).unwrap();
+    let mut csv = Vec::new();
+    o.write_quantiles_csv(&mut csv).unwrap();
+    let text = String::from_utf8(csv).unwrap();
+    let mut lines = text.lines();
+    assert_eq!(
+        lines.next().unwrap(),
+        "pathway,scenario,year,season,quantity,p05,p25,p50,p75,p95,members,outside_fit_pct"
+    );
+    let omega = lines.find(|l| l.contains(",omega_ar,")).unwrap();
+    let p50 = omega.split(',').nth(7).unwrap();
+    assert_eq!(p50.split('.').nth(1).unwrap().len(), 4, "{omega}");
+    for q in [
+        "pco2_uatm",
+        "dic_umol_kg",
+        "net_calc_kg_m2_yr_chan2013",
+        "calc_change_pct_silverman2009",
+    ] {
+        assert!(text.contains(&format!(",{q},")), "{q}");
+    }
+    let mut json = Vec::new();
+    o.write_json(&mut json).unwrap();
+    let v: serde_json::Value = serde_json::from_slice(&json).unwrap();
+    assert!(!v["thresholds"]["crossings"].as_array().unwrap().is_empty());
+    assert!(
+        !v["calcification"]["zero_years"]
+            .as_array()
+            .unwrap()
+            .is_empty()
+    );
+    assert_eq!(
+        v["calcification"]["relationships"]
+            .as_array()
+            .unwrap()
+            .len(),
+        3
+    );
+    assert_eq!(
+        v["quantiles"].as_array().unwrap().len(),
+        o.quantile_rows().len()
+    );
+}

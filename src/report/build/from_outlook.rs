@@ -1,0 +1,428 @@
+//! The outlook part of the report model: read from the typed [`Outlook`] by pathway,
+//! scenario, group and quantity, never by formatted names.
+
+use std::collections::BTreeSet;
+
+use super::super::model::*;
+use super::SiteRun;
+use crate::outlook::result::{
+    Criterion, CrossingGroup, GroupId, Outlook, QuantileSeries, Quantity, ScenarioId,
+};
+
+/// Horizon years shown in the report's tables when the site projects them (the full series
+/// stays in the figures and in `--data-out`).
+const PREFERRED_HORIZONS: [i32; 5] = [2030, 2040, 2050, 2075, 2100];
+
+pub(super) fn threshold_classes(outlook: &Outlook) -> ThresholdClasses {
+    ThresholdClasses {
+        levels: outlook
+            .classes
+            .bands
+            .iter()
+            .filter_map(|b| b.min_omega_ar)
+            .collect(),
+        labels: outlook
+            .classes
+            .bands
+            .iter()
+            .map(|b| b.name.clone())
+            .collect(),
+        citation: outlook.classes.source.clone(),
+    }
+}
+
+/// Table horizons: the preferred years the projection has, else up to five of its years
+/// spread evenly (always including the last).
+pub(super) fn horizons(years: &[i32]) -> Vec<i32> {
+    let preferred: Vec<i32> = PREFERRED_HORIZONS
+        .iter()
+        .copied()
+        .filter(|y| years.contains(y))
+        .collect();
+    if preferred.len() >= 2 {
+        return preferred;
+    }
+    if years.len() <= 5 {
+        return years.to_vec();
+    }
+    let n = years.len() - 1;
+    let mut out: Vec<i32> = (0..5)
+        .filter_map(|i| years.get(i * n / 4).copied())
+        .collect();
+    out.dedup();
+    out
+}
+
+/// Every pathway of every site, in order of 2100 CO2 (lowest emissions first).
+pub(super) fn pathway_list(runs: &[SiteRun<'_>]) -> Vec<PathwayInfo> {
+    let mut seen = BTreeSet::new();
+    let mut list: Vec<(f64, PathwayInfo)> = Vec::new();
+    for run in runs {
+        let years = &run.outlook.settings.horizon_years;
+        for p in &run.outlook.pathways {
+            if !seen.insert(p.name.clone()) {
+                continue;
+            }
+            let at = |y: i32| {
+                years
+                    .iter()
+                    .zip(&p.xco2_ppm)
+                    .find(|(v, _)| **v == y)
+                    .map(|(_, x)| *x)
+            };
+            let last = p.xco2_ppm.last().copied().unwrap_or(f64::NAN);
+            let description = match (at(2050), years.last()) {
+                (Some(v50), Some(&ly)) if ly != 2050 => {
+                    Some(format!("{v50:.0} ppm CO2 in 2050, {last:.0} ppm in {ly}"))
+                }
+                (_, Some(&ly)) => Some(format!("{last:.0} ppm CO2 in {ly}")),
+                _ => None,
+            };
+            list.push((
+                last,
+                PathwayInfo {
+                    id: p.name.clone(),
+                    label: p.name.clone(),
+                    citation: p.source.clone(),
+                    description,
+                },
+            ));
+        }
+    }
+    list.sort_by(|a, b| a.0.total_cmp(&b.0));
+    list.into_iter().map(|(_, p)| p).collect()
+}
+
+fn quantiles(q: &crate::outlook::Quantiles) -> Quantiles {
+    Quantiles {
+        p05: q.p05,
+        p25: q.p25,
+        p50: q.p50,
+        p75: q.p75,
+        p95: q.p95,
+    }
+}
+
+/// Omega_ar (and pH) quantiles per pathway and season, base case.
+pub(super) fn projection(outlook: &Outlook, seasons: &[String]) -> Vec<PathwayProjection> {
+    outlook
+        .pathway_ids()
+        .map(|(pid, p)| PathwayProjection {
+            pathway: p.name.clone(),
+            seasons: seasons
+                .iter()
+                .enumerate()
+                .filter_map(|(si, season)| {
+                    let g = GroupId::Season(si);
+                    let omega = outlook.series(pid, ScenarioId::Base, g, Quantity::OmegaAr)?;
+                    let ph = outlook.series(pid, ScenarioId::Base, g, Quantity::PhT);
+                    Some(SeasonSeries {
+                        season: season.clone(),
+                        points: omega
+                            .points
+                            .iter()
+                            .map(|pt| ProjectionPoint {
+                                year: pt.year,
+                                omega_ar: quantiles(&pt.q),
+                                ph_t: ph.and_then(|s| s.at(pt.year)).map(|x| quantiles(&x.q)),
+                            })
+                            .collect(),
+                    })
+                })
+                .collect(),
+        })
+        .collect()
+}
+
+/// Crossing years below each habitat threshold per pathway and season, base case.
+pub(super) fn crossings(outlook: &Outlook) -> Vec<Crossing> {
+    let last_year = outlook
+        .settings
+        .horizon_years
+        .last()
+        .copied()
+        .unwrap_or(2100);
+    let crossing_year =
+        |y: Option<i32>| y.map_or(CrossingYear::NotBy(last_year), CrossingYear::Year);
+    outlook
+        .crossings
+        .iter()
+        .filter(|c| c.scenario == ScenarioId::Base)
+        .filter_map(|c| {
+            let Criterion::OmegaArBelow {
+                threshold_omega_ar, ..
+            } = c.criterion
+            else {
+                return None;
+            };
+            let CrossingGroup::Group(g @ GroupId::Season(_)) = c.group else {
+                return None;
+            };
+            let already = c.met_at_baseline;
+            Some(Crossing {
+                pathway: outlook.pathway(c.pathway)?.name.clone(),
+                season: outlook.group_label(g).to_string(),
+                threshold: threshold_omega_ar,
+                median: if already {
+                    CrossingYear::AlreadyBelow
+                } else {
+                    crossing_year(c.first_year.p50)
+                },
+                early: if already {
+                    CrossingYear::AlreadyBelow
+                } else {
+                    crossing_year(c.first_year.p05)
+                },
+                late: crossing_year(c.first_year.p95),
+            })
+        })
+        .collect()
+}
+
+/// Chance below each threshold per pathway, season and year, base case.
+pub(super) fn probabilities(outlook: &Outlook) -> Vec<BelowProbability> {
+    outlook
+        .probabilities
+        .iter()
+        .filter(|p| p.scenario == ScenarioId::Base && matches!(p.group, GroupId::Season(_)))
+        .filter_map(|p| {
+            Some(BelowProbability {
+                pathway: outlook.pathway(p.pathway)?.name.clone(),
+                year: p.year,
+                season: outlook.group_label(p.group).to_string(),
+                threshold: p.threshold_omega_ar,
+                percent: p.prob_below_pct,
+            })
+        })
+        .collect()
+}
+
+/// The calcification outlook per relationship (relative change over all records), and the
+/// site's absolute net calcification at the last year per relationship, worded for the
+/// method notes.
+pub(super) fn calcification(outlook: &Outlook) -> (Vec<CalcificationOutlook>, Vec<String>) {
+    let mut absolute_notes: Vec<String> = Vec::new();
+    let all = GroupId::Aggregate;
+    let base = ScenarioId::Base;
+    let list: Vec<CalcificationOutlook> = outlook
+        .relationships
+        .iter()
+        .map(|rel| {
+            let [change, net] = Quantity::of_relationship(rel.rel_id());
+            let series: Vec<CalcSeries> = outlook
+                .pathway_ids()
+                .map(|(pid, p)| CalcSeries {
+                    pathway: p.name.clone(),
+                    points: outlook
+                        .series(pid, base, all, change)
+                        .map(|s| {
+                            s.points
+                                .iter()
+                                .map(|pt| CalcPoint {
+                                    year: pt.year,
+                                    value: quantiles(&pt.q),
+                                    extrapolated: pt.outside_fit_pct.is_some_and(|x| x > 0.0),
+                                })
+                                .collect()
+                        })
+                        .unwrap_or_default(),
+                })
+                .collect();
+            let mut last_year = None;
+            let at_last: Vec<String> = outlook
+                .pathway_ids()
+                .filter_map(|(pid, p)| {
+                    let pt = outlook.series(pid, base, all, net)?.points.last()?;
+                    last_year = Some(pt.year);
+                    Some(format!("{} {:.2}", p.name, pt.q.p50))
+                })
+                .collect();
+            let temp = rel
+                .temp_range_c
+                .map(|(a, b)| format!(", {a}–{b} °C"))
+                .unwrap_or_default();
+            let name = rel.name.to_string();
+            if let Some(y) = last_year
+                && !at_last.is_empty()
+            {
+                absolute_notes.push(format!("{name}: {} in {y}", at_last.join(", ")));
+            }
+            CalcificationOutlook {
+                relationship: name,
+                citation: rel.source.to_string(),
+                unit: CalcUnit::PercentChange,
+                valid_range: format!("{}{temp}", omega_range_text(rel.omega_range)),
+                baseline: None,
+                series,
+                note: Some(format!(
+                    "{} ({}). Source status: {}. Identifier in site files and in the tables \
+                     of calcisite project: {}.",
+                    formula_text(rel.form_text),
+                    formula_text(rel.scope),
+                    rel.status,
+                    rel.id,
+                )),
+            }
+        })
+        .collect();
+    (list, absolute_notes)
+}
+
+/// Local scenarios: the median Omega_ar of `season` (else all records) at the table
+/// horizons, beside the base case.
+pub(super) fn local_scenarios(
+    outlook: &Outlook,
+    season: Option<(usize, &str)>,
+    horizons: &[i32],
+) -> Vec<LocalScenario> {
+    let (group, label) = match season {
+        Some((i, name)) => (GroupId::Season(i), name.to_string()),
+        None => (
+            GroupId::Aggregate,
+            crate::outlook::ensemble::AGGREGATE_LABEL.to_string(),
+        ),
+    };
+    outlook
+        .scenario_ids()
+        .filter(|(id, _)| *id != ScenarioId::Base)
+        .map(|(sid, name)| {
+            let mut rows = Vec::new();
+            for (pid, p) in outlook.pathway_ids() {
+                let with = outlook.series(pid, sid, group, Quantity::OmegaAr);
+                let base = outlook.series(pid, ScenarioId::Base, group, Quantity::OmegaAr);
+                for &y in horizons {
+                    if let Some(pt) = with.and_then(|s| s.at(y)) {
+                        rows.push(ScenarioRow {
+                            pathway: p.name.clone(),
+                            year: y,
+                            season: label.clone(),
+                            omega_ar: quantiles(&pt.q),
+                            reference_median: base
+                                .and_then(|s: &QuantileSeries| s.at(y))
+                                .map(|pt| pt.q.p50),
+                        });
+                    }
+                }
+            }
+            let description = match sid {
+                ScenarioId::Local(i) => outlook
+                    .scenarios
+                    .get(i)
+                    .map(|s| {
+                        s.offsets
+                            .iter()
+                            .map(|(season, ta, dic)| {
+                                format!("{season}: TA {ta:+} µmol/kg, DIC {dic:+} µmol/kg")
+                            })
+                            .collect::<Vec<_>>()
+                            .join("; ")
+                    })
+                    .unwrap_or_default(),
+                ScenarioId::Base => String::new(),
+            };
+            LocalScenario {
+                name: name.to_string(),
+                description,
+                rows,
+            }
+        })
+        .collect()
+}
+
+/// The projection settings for the Methods section.
+pub(super) fn settings(outlook: &Outlook) -> Vec<Setting> {
+    let st = &outlook.settings;
+    vec![
+        super::setting("Observed CO2", st.observed_co2_source.clone()),
+        super::setting("Disequilibrium", st.disequilibrium.clone()),
+        super::setting("Warming", if st.warming { "on" } else { "off" }.to_string()),
+        super::setting(
+            "Ensemble",
+            format!("{} members, seed {}", st.members, st.seed),
+        ),
+        super::setting("Constant uncertainties", st.constants_uncertainty.clone()),
+        super::setting(
+            "Measurement uncertainties",
+            st.measurement_uncertainty.clone(),
+        ),
+        super::setting("Record variability", st.record_variability.clone()),
+        super::setting(
+            "Baseline calcification",
+            format!(
+                "{:.2} kg CaCO₃ m⁻² yr⁻¹ ({})",
+                outlook.calcification_baseline_kg_m2_yr, outlook.calcification_baseline_source
+            ),
+        ),
+    ]
+}
+
+/// The outlook's method notes: the absolute net calcification (when any), then the run's
+/// notes, worded for the report.
+pub(super) fn notes(outlook: &Outlook, absolute_notes: &[String]) -> Vec<String> {
+    let mut notes = Vec::new();
+    if !absolute_notes.is_empty() {
+        notes.push(format!(
+            "Net calcification at the baseline rate of {:.2} kg CaCO₃ m⁻² yr⁻¹ \
+             (see Projection settings), ensemble median in kg CaCO₃ m⁻² yr⁻¹: {}.",
+            outlook.calcification_baseline_kg_m2_yr,
+            absolute_notes.join("; ")
+        ));
+    }
+    notes.extend(
+        outlook
+            .notes
+            .iter()
+            .map(|n| super::tidy_numbers(&n.to_string())),
+    );
+    notes
+}
+
+/// "Ω_ar 1–5", or "Ω_ar ≥ 1" when the fitted range has no upper end.
+fn omega_range_text((lo, hi): (f64, f64)) -> String {
+    match (lo.is_finite(), hi.is_finite()) {
+        (true, true) => format!("Ω_ar {lo}–{hi}"),
+        (true, false) => format!("Ω_ar ≥ {lo}"),
+        (false, true) => format!("Ω_ar ≤ {hi}"),
+        (false, false) => "any Ω_ar".to_string(),
+    }
+}
+
+/// A relationship's formula as plain text from the outlook stage ("G = k x (Omega_ar - 1)")
+/// written with the report's symbols ("G = k × (Ω_ar − 1)").
+fn formula_text(text: &str) -> String {
+    text.replace("Omega_ar", "Ω_ar")
+        .replace("Omega_b", "Ω_b")
+        .replace("Omega", "Ω")
+        .replace(" x ", " × ")
+        .replace(" - ", " − ")
+        .replace("= -", "= −")
+        .replace("<=", "≤")
+        .replace(">=", "≥")
+        .replace("degC", "°C")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn symbols_are_written_for_readers() {
+        assert_eq!(omega_range_text((1.0, f64::INFINITY)), "Ω_ar ≥ 1");
+        assert_eq!(omega_range_text((1.0, 5.0)), "Ω_ar 1–5");
+        assert_eq!(
+            formula_text("G = k x (Omega_ar - 1); G = 0 for Omega_ar <= 1, 5-37 degC"),
+            "G = k × (Ω_ar − 1); G = 0 for Ω_ar ≤ 1, 5-37 °C"
+        );
+    }
+
+    #[test]
+    fn table_horizons() {
+        let every5: Vec<i32> = (2025..=2100).step_by(5).collect();
+        assert_eq!(horizons(&every5), vec![2030, 2040, 2050, 2075, 2100]);
+        assert_eq!(horizons(&[2027, 2033]), vec![2027, 2033]);
+        assert_eq!(
+            horizons(&[2031, 2041, 2051, 2061, 2071, 2081, 2091]),
+            vec![2031, 2041, 2061, 2071, 2091]
+        );
+    }
+}
