@@ -22,6 +22,7 @@ pub mod fmt;
 pub mod model;
 pub mod output;
 pub mod palette;
+pub mod ranking;
 pub mod templates;
 pub mod view;
 

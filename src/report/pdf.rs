@@ -253,7 +253,7 @@ mod tests {
             );
         }
         // The best-ranked site is listed first in the ranking table.
-        let ranked = crate::report::view::rank_sites(&model);
+        let ranked = crate::report::ranking::rank_sites(&model);
         let first = &model.sites[ranked[0].site].name;
         let pos_first = text.find(&format!("1 {first}"));
         assert!(pos_first.is_some(), "rank 1 is not {first}");
