@@ -83,11 +83,6 @@ pub fn calc(x: f64, unit: super::model::CalcUnit) -> String {
     }
 }
 
-/// Degree Heating Weeks, °C-weeks: one decimal.
-pub fn dhw(x: f64) -> String {
-    number(x, 1)
-}
-
 /// The Ω_ar range of threshold class `k` (0 = highest): "≥ 4.0", "3.5–4.0", "< 3.0".
 pub fn class_range_text(classes: &super::model::ThresholdClasses, k: usize) -> String {
     let n = classes.levels.len();

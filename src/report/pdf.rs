@@ -477,32 +477,14 @@ mod tests {
     }
 
     #[test]
-    fn thermal_stress_section_and_limitation_follow_the_model() {
-        use crate::report::model::{Quantiles, ThermalRow, ThermalStress};
-        let mut model = example_model(1);
-        model.sites[0].thermal = Some(ThermalStress {
-            method: "Degree Heating Weeks from a delta method (example)".into(),
-            citation: "Skirving et al. (2020), Remote Sens. 12:3856 (example entry)".into(),
-            rows: vec![ThermalRow {
-                pathway: "ssp2-4.5".into(),
-                year: 2050,
-                max_dhw: Quantiles {
-                    p05: 2.0,
-                    p25: 3.5,
-                    p50: 4.4,
-                    p75: 5.0,
-                    p95: 7.1,
-                },
-                alert: "Alert Level 1".into(),
-            }],
-        });
-        let r = render(&model, &RenderOptions::default()).unwrap_or_else(|e| panic!("{e}"));
+    fn thermal_stress_is_listed_as_not_computed_and_has_no_table() {
+        let r = render_example(1);
         let text = text_of(&r.pdf);
-        assert!(text.contains("Thermal stress"));
-        assert!(text.contains("4.4 (2.0–7.1)"));
-        assert!(text.contains("Alert Level 1"));
-        assert!(text.contains("assessed only as Degree Heating Weeks"));
-        assert!(!text.contains("are not computed in this report"));
+        assert!(text.contains("Thermal stress: marine heatwaves and coral bleaching are not"));
+        assert!(text.contains("computed in this report"));
+        // No thermal-stress section or table: the phrase appears once, in the limitations.
+        assert_eq!(text.matches("Thermal stress").count(), 1, "{text}");
+        assert!(!text.contains("DHW"));
     }
 
     #[test]

@@ -85,7 +85,6 @@ pub fn build(model: &ReportModel, figures: &ReportFigures, date: ReportTime) -> 
         "sites": sites,
         "comparison": comparison,
         "extra_limitations": model.extra_limitations,
-        "thermal_computed": model.sites.iter().any(|s| s.thermal.is_some()),
         "appendix": model.include_appendix,
         "reproducibility": {
             "command": repro.command,

@@ -58,7 +58,6 @@ pub(super) fn site_view(model: &ReportModel, site: &SiteReport, figs: &SiteFigur
         "probabilities": probability_rows(model, site),
         "calcification": calcification,
         "scenarios": scenario_views(model, site),
-        "thermal": thermal_view(model, site),
         "methods": {
             "chemistry": site.methods.chemistry.iter().map(|m| json!({
                 "quantity": m.quantity, "method": m.method, "citation": m.citation,
@@ -267,22 +266,6 @@ fn scenario_views(model: &ReportModel, site: &SiteReport) -> Vec<Value> {
             })
         })
         .collect()
-}
-
-fn thermal_view(model: &ReportModel, site: &SiteReport) -> Option<Value> {
-    site.thermal.as_ref().map(|t| {
-        json!({
-            "method": t.method,
-            "citation": t.citation,
-            "rows": t.rows.iter().map(|r| json!({
-                "pathway": pathway_label(model, &r.pathway),
-                "year": r.year.to_string(),
-                "median": fmt::dhw(r.max_dhw.p50),
-                "range": fmt::range(&fmt::dhw(r.max_dhw.p05), &fmt::dhw(r.max_dhw.p95)),
-                "alert": r.alert,
-            })).collect::<Vec<_>>(),
-        })
-    })
 }
 
 fn stat_view(s: &Stat, f: fn(f64) -> String) -> Value {
