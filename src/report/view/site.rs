@@ -329,6 +329,8 @@ fn coverage_view(site: &SiteReport) -> Value {
         "last": c.last_date,
         "stations": c.stations.join(", "),
         "n_stations": c.stations.len().to_string(),
+        // Seasons named after single months need no months column.
+        "months_column": c.seasons.iter().any(|s| s.months != s.season),
         "seasons": c.seasons.iter().map(|s| json!({
             "season": s.season,
             "months": s.months,
