@@ -8,6 +8,7 @@
 //!     template: TemplateSource::BuiltIn,
 //!     pdfa: false,
 //!     timestamp_override: report::timestamp_from_env()?,
+//!     dated_by_user: true, // the model's timestamp is the site's `[report] date`
 //! };
 //! let rendered = report::write_pdf(&model, &options, Path::new("site.pdf"))?;
 //! report::write_data_json(&model, Path::new("site.json"))?;   // --data-out

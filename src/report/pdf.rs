@@ -22,6 +22,27 @@ pub struct RenderOptions {
     pub pdfa: bool,
     /// Replaces the model's timestamp (pass [`super::timestamp_from_env`]'s value here).
     pub timestamp_override: Option<ReportTime>,
+    /// Whether the model's timestamp is a preparation date the user gave (`[report] date`).
+    /// When it is not and there is no override, the timestamp is only the data's last sample
+    /// time: the PDF keeps it as its creation time (same inputs, same bytes) but prints no
+    /// preparation date, and says how to set one.
+    pub dated_by_user: bool,
+}
+
+impl RenderOptions {
+    /// The dates of a report rendered with these options.
+    pub fn dates(&self, model: &ReportModel) -> view::Dates {
+        let timestamp = self.timestamp_override.unwrap_or(model.timestamp);
+        let prepared = if self.timestamp_override.is_some() || self.dated_by_user {
+            Some(timestamp)
+        } else {
+            None
+        };
+        view::Dates {
+            timestamp,
+            prepared,
+        }
+    }
 }
 
 /// A rendered report.
@@ -42,9 +63,10 @@ pub fn render(model: &ReportModel, options: &RenderOptions) -> Result<Rendered, 
             "a report needs at least one site".to_string(),
         ));
     }
-    let date = options.timestamp_override.unwrap_or(model.timestamp);
+    let dates = options.dates(model);
+    let date = dates.timestamp;
     let figs = figures::build_all(model)?;
-    let data = view::build(model, &figs, date);
+    let data = view::build(model, &figs, dates);
     let data_json = serde_json::to_vec(&data)
         .map_err(|e| ReportError::Model(format!("cannot serialise the report data: {e}")))?;
     let files: Vec<(String, Vec<u8>)> = figs

@@ -21,8 +21,18 @@ use super::palette;
 /// Version of the embedded typesetter, shown in the Reproducibility section.
 pub const TYPESETTER: &str = "Typst 0.15.1";
 
-/// Builds the template data. `date` is the effective report date (after `SOURCE_DATE_EPOCH`).
-pub fn build(model: &ReportModel, figures: &ReportFigures, date: ReportTime) -> Value {
+/// The dates a report prints.
+#[derive(Debug, Clone, Copy)]
+pub struct Dates {
+    /// The PDF's creation time: `SOURCE_DATE_EPOCH`, else the model's timestamp.
+    pub timestamp: ReportTime,
+    /// When the report was prepared, if known (`SOURCE_DATE_EPOCH` or `[report] date`).
+    pub prepared: Option<ReportTime>,
+}
+
+/// Builds the template data.
+pub fn build(model: &ReportModel, figures: &ReportFigures, dates: Dates) -> Value {
+    let date = dates.timestamp;
     let n = model.pathways.len();
     let pathways: Vec<Value> = model
         .pathways
@@ -72,7 +82,8 @@ pub fn build(model: &ReportModel, figures: &ReportFigures, date: ReportTime) -> 
         "subtitle": model.subtitle,
         "prepared_for": model.prepared_for,
         "prepared_by": model.prepared_by,
-        "date": date.iso_date(),
+        "prepared": dates.prepared.map(|d| d.iso_date()),
+        "data_to": last_sample_date(model),
         "tool": format!("{} {}", model.tool.name, model.tool.version),
         "typesetter": TYPESETTER,
         "thresholds": {
@@ -98,6 +109,17 @@ pub fn build(model: &ReportModel, figures: &ReportFigures, date: ReportTime) -> 
             "timestamp": date.iso_datetime(),
         },
     })
+}
+
+/// The last sample date over all sites (coverage dates are ISO, so their text order is their
+/// date order).
+fn last_sample_date(model: &ReportModel) -> Option<&str> {
+    model
+        .sites
+        .iter()
+        .map(|s| s.coverage.last_date.as_str())
+        .filter(|d| !d.is_empty())
+        .max()
 }
 
 fn pathway_label<'a>(model: &'a ReportModel, id: &'a str) -> &'a str {
@@ -138,6 +160,13 @@ mod tests {
     use crate::report::example::example_model;
     use crate::report::figures::build_all;
 
+    fn undated(model: &ReportModel) -> Dates {
+        Dates {
+            timestamp: model.timestamp,
+            prepared: None,
+        }
+    }
+
     #[test]
     fn every_number_in_the_view_is_a_string() {
         fn walk(v: &Value, path: &str) {
@@ -156,7 +185,7 @@ mod tests {
         }
         let model = example_model(3);
         let figs = build_all(&model).unwrap();
-        let v = build(&model, &figs, model.timestamp);
+        let v = build(&model, &figs, undated(&model));
         walk(&v, "");
     }
 
@@ -164,7 +193,7 @@ mod tests {
     fn verdict_uses_limiting_season_and_exact_horizon_values() {
         let model = example_model(1);
         let figs = build_all(&model).unwrap();
-        let v = build(&model, &figs, model.timestamp);
+        let v = build(&model, &figs, undated(&model));
         let site = &model.sites[0];
         let season = site.limiting_season().unwrap();
         let verdict = &v["sites"][0]["verdict"];
@@ -184,10 +213,29 @@ mod tests {
         let mut model = example_model(1);
         model.horizons.push(2093); // not on the example's 5-year grid
         let figs = build_all(&model).unwrap();
-        let v = build(&model, &figs, model.timestamp);
+        let v = build(&model, &figs, undated(&model));
         let cells = v["sites"][0]["verdict"]["rows"][0]["cells"]
             .as_array()
             .unwrap();
         assert_eq!(cells.last().unwrap()["median"], fmt::MISSING);
+    }
+
+    #[test]
+    fn data_date_and_preparation_date_are_apart() {
+        let mut model = example_model(2);
+        model.sites[1].coverage.last_date = "2025-02-03".to_string();
+        let figs = build_all(&model).unwrap();
+        let v = build(&model, &figs, undated(&model));
+        // The example's first site ends on 2024-11-28, the second now on 2025-02-03: the later.
+        assert_eq!(v["data_to"], "2025-02-03");
+        assert_eq!(v["prepared"], Value::Null);
+        let prepared = ReportTime::from_ymd(2025, 6, 1).unwrap();
+        let dates = Dates {
+            timestamp: prepared,
+            prepared: Some(prepared),
+        };
+        let v = build(&model, &figs, dates);
+        assert_eq!(v["prepared"], "2025-06-01");
+        assert_eq!(v["reproducibility"]["timestamp"], "2025-06-01T00:00:00Z");
     }
 }
