@@ -674,25 +674,56 @@ fn same_inputs_give_the_same_bytes_whatever_the_thread_count() {
     );
 }
 
+/// The last date (local, as written) in the date column of a site's record files: the first ten
+/// characters of the `date` or `datetime` cell are the ISO date.
+fn last_record_date(site: &str) -> String {
+    input_files(site)
+        .iter()
+        .skip(1)
+        .flat_map(|f| {
+            let text = fs::read_to_string(f).expect("records");
+            let mut lines = text.lines();
+            let header: Vec<&str> = lines.next().expect("header").split(',').collect();
+            let col = header
+                .iter()
+                .position(|h| *h == "date" || *h == "datetime")
+                .expect("date column");
+            lines
+                .filter_map(|l| l.split(',').nth(col).map(|c| c.chars().take(10).collect()))
+                .collect::<Vec<String>>()
+        })
+        .max()
+        .expect("a record")
+}
+
 #[test]
-fn source_date_epoch_sets_the_printed_date() {
-    let t = &one().data()["timestamp"];
-    let default_date = format!(
-        "{:04}-{:02}-{:02}",
-        t["year"].as_i64().expect("year"),
-        t["month"].as_i64().expect("month"),
-        t["day"].as_i64().expect("day")
-    );
-    one().assert_has(
-        &format!("Report date {default_date}"),
-        "default report date",
-    );
+fn data_date_and_preparation_date_are_printed_apart() {
+    // The lagoon site gives no [report] date: the last sample date is printed, and a note says
+    // that no preparation date was set.
+    let last = last_record_date(LAGOON);
+    one().assert_has(&format!("Data to {last}"), "last sample date");
+    one().assert_has("Prepared date not set", "note on the missing date");
+    assert!(!one().has("Report date"), "the old single date is back");
     // 1700000000 s = 2023-11-14T22:13:20Z (GNU `date -u -d @1700000000`).
     let r = render(&[LAGOON], &[], &[("SOURCE_DATE_EPOCH", "1700000000")]);
-    r.assert_has("Report date 2023-11-14", "SOURCE_DATE_EPOCH date");
+    r.assert_has("Prepared 2023-11-14", "SOURCE_DATE_EPOCH date");
     r.assert_has("2023-11-14T22:13:20Z", "SOURCE_DATE_EPOCH timestamp");
-    assert!(!r.has(&format!("Report date {default_date}")));
+    r.assert_has(&format!("Data to {last}"), "last sample date");
+    assert!(!r.has("date not set"));
     assert!(r.pdf != one().pdf);
+    // A [report] date is the preparation date.
+    let dir = tempfile::tempdir().expect("temp dir");
+    let demo = repo().join("demo-data");
+    let text = fs::read_to_string(repo().join(LAGOON))
+        .expect("site")
+        .replace("../demo-data", &demo.display().to_string())
+        .replace("[report]\n", "[report]\ndate = \"2025-02-01\"\n");
+    let site = dir.path().join("dated.toml");
+    fs::write(&site, text).expect("write site");
+    let site = site.display().to_string();
+    let r = render(&[site.as_str()], &[], &[]);
+    r.assert_has("Prepared 2025-02-01", "[report] date");
+    r.assert_has(&format!("Data to {last}"), "last sample date");
 }
 
 #[test]

@@ -17,8 +17,9 @@ Examples:
   calcisite report --dump-template my-templates
   calcisite report reef.toml -o reef.pdf --template my-templates
 
-The PDF's date comes from the inputs (or SOURCE_DATE_EPOCH when set), so the same inputs,
-seed and version give a byte-identical file.")]
+The report prints the date of its last sample and the date it was prepared: [report] date
+in the site file, or SOURCE_DATE_EPOCH when set (never the clock), so the same inputs, seed
+and version give a byte-identical file.")]
 pub struct ReportArgs {
     /// Site description files (TOML); two or more give a comparison report
     #[arg(value_name = "SITE.toml", required_unless_present = "dump_template", num_args = 1..)]
@@ -66,8 +67,12 @@ pub fn dump_templates(dir: &std::path::Path) -> Result<Vec<PathBuf>, ReportError
 
 #[cfg(feature = "pdf")]
 impl ReportArgs {
-    /// Render options from the flags and `SOURCE_DATE_EPOCH`.
-    pub fn render_options(&self) -> Result<crate::report::RenderOptions, ReportError> {
+    /// Render options from the flags and `SOURCE_DATE_EPOCH`; `dated_by_user`: a site gave
+    /// `[report] date` (which the model's timestamp then holds).
+    pub fn render_options(
+        &self,
+        dated_by_user: bool,
+    ) -> Result<crate::report::RenderOptions, ReportError> {
         Ok(crate::report::RenderOptions {
             template: match &self.template {
                 Some(dir) => crate::report::TemplateSource::Dir(dir.clone()),
@@ -75,19 +80,22 @@ impl ReportArgs {
             },
             pdfa: self.pdfa,
             timestamp_override: crate::report::timestamp_from_env()?,
+            dated_by_user,
         })
     }
 
     /// Renders the model and writes the PDF (and `--data-out` JSON). Nothing is written when
-    /// the typesetting fails; the JSON is written only after the PDF succeeded.
+    /// the typesetting fails; the JSON is written only after the PDF succeeded. `dated_by_user`
+    /// as for [`ReportArgs::render_options`].
     pub fn write_outputs(
         &self,
         model: &crate::report::ReportModel,
+        dated_by_user: bool,
     ) -> Result<crate::report::Rendered, ReportError> {
         let out = self.output.as_deref().ok_or_else(|| {
             ReportError::Refused("no output file given (use -o FILE.pdf)".to_string())
         })?;
-        let options = self.render_options()?;
+        let options = self.render_options(dated_by_user)?;
         let rendered = crate::report::render(model, &options)?;
         crate::report::write_atomic(out, &rendered.pdf)?;
         if let Some(json) = &self.data_out {
@@ -214,7 +222,9 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
             return EXIT_INPUT;
         }
     };
-    match args.write_outputs(&model) {
+    // The model builder takes the report date from the first site that gives `[report] date`.
+    let dated_by_user = runs.iter().any(|r| r.loaded.site.report.date.is_some());
+    match args.write_outputs(&model, dated_by_user) {
         Ok(rendered) => {
             if !crate::diag::quiet() {
                 eprint!("{}", rendered.warnings);

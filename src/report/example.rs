@@ -132,50 +132,9 @@ pub fn example_model(n_sites: usize) -> ReportModel {
 }
 
 fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> SiteReport {
-    let season_offsets = [0.25, 0.05, -0.3, -0.05];
-    let baseline: Vec<SeasonBaseline> = SEASONS
-        .iter()
-        .zip(season_offsets)
-        .map(|((s, _), off)| SeasonBaseline {
-            season: s.to_string(),
-            n: 12 + i,
-            omega_ar: stat(omega0 + off, 0.12),
-            ph_t: stat(8.03 + off * 0.05, 0.02),
-            temp_c: stat(26.0 + off * 8.0, 0.6),
-            salinity: Some(stat(35.1, 0.15)),
-            ta: Some(stat(2290.0, 12.0)),
-            dic: Some(stat(1960.0 - off * 40.0, 15.0)),
-            pco2: Some(stat(405.0 - off * 60.0, 18.0)),
-            omega_ca: Some(stat((omega0 + off) * 1.5, 0.18)),
-        })
-        .collect();
+    let baseline = example_baseline(i, omega0);
     let years: Vec<i32> = (2025..=2100).step_by(5).collect();
-    let projection: Vec<PathwayProjection> = pathways
-        .iter()
-        .enumerate()
-        .map(|(k, p)| PathwayProjection {
-            pathway: p.id.clone(),
-            seasons: baseline
-                .iter()
-                .map(|b| SeasonSeries {
-                    season: b.season.clone(),
-                    points: years
-                        .iter()
-                        .map(|&y| {
-                            let factor = (420.0 / co2(k, y)).powf(0.6);
-                            let m = b.omega_ar.mean * factor;
-                            let spread = 0.08 + 0.002 * f64::from(y - 2025);
-                            ProjectionPoint {
-                                year: y,
-                                omega_ar: q(m, spread),
-                                ph_t: Some(q(b.ph_t.mean - 0.35 * (1.0 - factor), 0.015)),
-                            }
-                        })
-                        .collect(),
-                })
-                .collect(),
-        })
-        .collect();
+    let projection = example_projection(&baseline, pathways, &years);
     let mut site = SiteReport {
         id: format!("site-{i}"),
         name: name.to_string(),
@@ -237,64 +196,135 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
             }],
         }],
         thermal: None,
-        methods: Methods {
-            chemistry: vec![
-                MethodEntry {
-                    quantity: "K1, K2".into(),
-                    method: "Lueker et al. (2000)".into(),
-                    citation: "Lueker, Dickson & Keeling (2000), Mar. Chem. 70:105–119".into(),
-                },
-                MethodEntry {
-                    quantity: "Aragonite solubility".into(),
-                    method: "Mucci (1983)".into(),
-                    citation: "Mucci (1983), Am. J. Sci. 283:780–799".into(),
-                },
-            ],
-            projection: vec![
-                Setting {
-                    name: "Disequilibrium".into(),
-                    value: "ratio (pCO2 sea/air kept)".into(),
-                },
-                Setting {
-                    name: "Warming".into(),
-                    value: "off".into(),
-                },
-            ],
-            notes: vec!["Depth in m taken as pressure in dbar.".to_string()],
-        },
-        samples: (0..40)
-            .map(|r| SampleRow {
-                file: "examples/records.csv".to_string(),
-                row: r + 1,
-                date: format!("2023-{:02}-{:02}", r % 12 + 1, r % 27 + 1),
-                station: if r % 2 == 0 { "N1".into() } else { "N2".into() },
-                season: SEASONS[(r as usize / 10) % 4].0.to_string(),
-                temp_c: 25.0 + (r % 7) as f64 * 0.4,
-                salinity: 35.0 + (r % 3) as f64 * 0.1,
-                pressure_dbar: 6.0,
-                ta: Some(2290.0 + r as f64),
-                dic: Some(1960.0 - r as f64),
-                ph_t: Some(8.03),
-                pco2: Some(400.0 + r as f64),
-                omega_ar: Some(3.8 - r as f64 * 0.01),
-                omega_ca: Some(5.7 - r as f64 * 0.015),
-                measured: vec!["ta".into(), "dic".into()],
-                flags: if r == 16 {
-                    vec!["excluded: pair mismatch".into()]
-                } else {
-                    Vec::new()
-                },
-                used: r != 16,
-            })
-            .collect(),
+        methods: example_methods(),
+        samples: example_samples(),
     };
-    // Crossing years derived from the invented series (median, 5 %, 95 % curves).
     let season = site.limiting_season().unwrap_or("Winter").to_string();
+    site.crossings = example_crossings(&site, pathways, &season);
+    site.probabilities = example_probabilities(&site, pathways, &season);
+    site.calcification = example_calcification(&site, pathways, &years);
+    site
+}
+
+/// Invented per-season statistics around `omega0`.
+fn example_baseline(i: usize, omega0: f64) -> Vec<SeasonBaseline> {
+    let season_offsets = [0.25, 0.05, -0.3, -0.05];
+    SEASONS
+        .iter()
+        .zip(season_offsets)
+        .map(|((s, _), off)| SeasonBaseline {
+            season: s.to_string(),
+            n: 12 + i,
+            omega_ar: stat(omega0 + off, 0.12),
+            ph_t: stat(8.03 + off * 0.05, 0.02),
+            temp_c: stat(26.0 + off * 8.0, 0.6),
+            salinity: Some(stat(35.1, 0.15)),
+            ta: Some(stat(2290.0, 12.0)),
+            dic: Some(stat(1960.0 - off * 40.0, 15.0)),
+            pco2: Some(stat(405.0 - off * 60.0, 18.0)),
+            omega_ca: Some(stat((omega0 + off) * 1.5, 0.18)),
+        })
+        .collect()
+}
+
+/// Invented projections: each season's mean scaled down with the pathway's invented CO2.
+fn example_projection(
+    baseline: &[SeasonBaseline],
+    pathways: &[PathwayInfo],
+    years: &[i32],
+) -> Vec<PathwayProjection> {
+    pathways
+        .iter()
+        .enumerate()
+        .map(|(k, p)| PathwayProjection {
+            pathway: p.id.clone(),
+            seasons: baseline
+                .iter()
+                .map(|b| SeasonSeries {
+                    season: b.season.clone(),
+                    points: years
+                        .iter()
+                        .map(|&y| {
+                            let factor = (420.0 / co2(k, y)).powf(0.6);
+                            let m = b.omega_ar.mean * factor;
+                            let spread = 0.08 + 0.002 * f64::from(y - 2025);
+                            ProjectionPoint {
+                                year: y,
+                                omega_ar: q(m, spread),
+                                ph_t: Some(q(b.ph_t.mean - 0.35 * (1.0 - factor), 0.015)),
+                            }
+                        })
+                        .collect(),
+                })
+                .collect(),
+        })
+        .collect()
+}
+
+fn example_methods() -> Methods {
+    Methods {
+        chemistry: vec![
+            MethodEntry {
+                quantity: "K1, K2".into(),
+                method: "Lueker et al. (2000)".into(),
+                citation: "Lueker, Dickson & Keeling (2000), Mar. Chem. 70:105–119".into(),
+            },
+            MethodEntry {
+                quantity: "Aragonite solubility".into(),
+                method: "Mucci (1983)".into(),
+                citation: "Mucci (1983), Am. J. Sci. 283:780–799".into(),
+            },
+        ],
+        projection: vec![
+            Setting {
+                name: "Disequilibrium".into(),
+                value: "ratio (pCO2 sea/air kept)".into(),
+            },
+            Setting {
+                name: "Warming".into(),
+                value: "off".into(),
+            },
+        ],
+        notes: vec!["Depth in m taken as pressure in dbar.".to_string()],
+    }
+}
+
+/// Forty invented samples of one record file; the 17th is not used.
+fn example_samples() -> Vec<SampleRow> {
+    (0..40)
+        .map(|r| SampleRow {
+            file: "examples/records.csv".to_string(),
+            row: r + 1,
+            date: format!("2023-{:02}-{:02}", r % 12 + 1, r % 27 + 1),
+            station: if r % 2 == 0 { "N1".into() } else { "N2".into() },
+            season: SEASONS[(r as usize / 10) % 4].0.to_string(),
+            temp_c: 25.0 + (r % 7) as f64 * 0.4,
+            salinity: 35.0 + (r % 3) as f64 * 0.1,
+            pressure_dbar: 6.0,
+            ta: Some(2290.0 + r as f64),
+            dic: Some(1960.0 - r as f64),
+            ph_t: Some(8.03),
+            pco2: Some(400.0 + r as f64),
+            omega_ar: Some(3.8 - r as f64 * 0.01),
+            omega_ca: Some(5.7 - r as f64 * 0.015),
+            measured: vec!["ta".into(), "dic".into()],
+            flags: if r == 16 {
+                vec!["excluded: pair mismatch".into()]
+            } else {
+                Vec::new()
+            },
+            used: r != 16,
+        })
+        .collect()
+}
+
+/// Crossing years derived from the invented series (median, 5 %, 95 % curves).
+fn example_crossings(site: &SiteReport, pathways: &[PathwayInfo], season: &str) -> Vec<Crossing> {
     let mut crossings = Vec::new();
     for p in pathways {
         for level in [4.0, 3.5, 3.0] {
             let series = site
-                .series(&p.id, &season)
+                .series(&p.id, season)
                 .map(|s| s.points.clone())
                 .unwrap_or_default();
             let cross = |f: fn(&Quantiles) -> f64| {
@@ -307,7 +337,7 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
             };
             crossings.push(Crossing {
                 pathway: p.id.clone(),
-                season: season.clone(),
+                season: season.to_string(),
                 threshold: level,
                 median: cross(|q| q.p50),
                 early: cross(|q| q.p05),
@@ -315,12 +345,19 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
             });
         }
     }
-    site.crossings = crossings;
-    // Chance below each level, from a normal approximation of the invented quantiles.
+    crossings
+}
+
+/// Chance below each level, from a normal approximation of the invented quantiles.
+fn example_probabilities(
+    site: &SiteReport,
+    pathways: &[PathwayInfo],
+    season: &str,
+) -> Vec<BelowProbability> {
     let mut probabilities = Vec::new();
     for p in pathways {
         for &y in &[2030, 2050, 2100] {
-            let Some(pt) = site.series(&p.id, &season).and_then(|s| s.at(y)) else {
+            let Some(pt) = site.series(&p.id, season).and_then(|s| s.at(y)) else {
                 continue;
             };
             let sd = (pt.omega_ar.p95 - pt.omega_ar.p05) / 3.29;
@@ -330,15 +367,22 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
                 probabilities.push(BelowProbability {
                     pathway: p.id.clone(),
                     year: y,
-                    season: season.clone(),
+                    season: season.to_string(),
                     threshold: level,
                     percent,
                 });
             }
         }
     }
-    site.probabilities = probabilities;
-    // Calcification: an invented linear % change per unit Ω and an invented rate law in kg.
+    probabilities
+}
+
+/// Calcification: an invented linear % change per unit Ω and an invented rate law in kg.
+fn example_calcification(
+    site: &SiteReport,
+    pathways: &[PathwayInfo],
+    years: &[i32],
+) -> Vec<CalcificationOutlook> {
     let omega_now = site.baseline.iter().map(|b| b.omega_ar.mean).sum::<f64>() / 4.0;
     let mut lin = CalcificationOutlook {
         relationship: "Linear change per unit Ωₐᵣ (example)".to_string(),
@@ -369,7 +413,7 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
             pathway: p.id.clone(),
             points: Vec::new(),
         };
-        for &y in &years {
+        for &y in years {
             let om = omega_now * (420.0 / co2(k, y)).powf(0.6);
             let pct = -15.0 * (omega_now - om);
             a.points.push(CalcPoint {
@@ -387,6 +431,5 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
         lin.series.push(a);
         rate.series.push(b);
     }
-    site.calcification = vec![lin, rate];
-    site
+    vec![lin, rate]
 }

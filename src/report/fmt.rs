@@ -79,9 +79,23 @@ pub fn calc(x: f64, unit: super::model::CalcUnit) -> String {
     }
 }
 
-/// Degree Heating Weeks, °C-weeks: one decimal.
-pub fn dhw(x: f64) -> String {
-    number(x, 1)
+/// The Ω_ar range of threshold class `k` (0 = highest): "≥ 4.0", "3.5–4.0", "< 3.0".
+pub fn class_range_text(classes: &super::model::ThresholdClasses, k: usize) -> String {
+    let n = classes.levels.len();
+    if n == 0 {
+        return String::new();
+    }
+    if k == 0 {
+        format!("≥ {}", level(classes.levels[0]))
+    } else if k >= n {
+        format!("< {}", level(classes.levels[n - 1]))
+    } else {
+        format!(
+            "{}–{}",
+            level(classes.levels[k]),
+            level(classes.levels[k - 1])
+        )
+    }
 }
 
 /// A range of two already formatted values: "a–b", or "a to b" when either carries a sign
@@ -123,6 +137,19 @@ mod tests {
         assert_eq!(opt(None, 2), "–");
         assert_eq!(range("3.10", "3.90"), "3.10–3.90");
         assert_eq!(range(&signed(-4.0, 0), &signed(4.0, 0)), "\u{2212}4 to +4");
+    }
+
+    #[test]
+    fn class_ranges_name_both_ends_of_each_class() {
+        // Levels 4.0 > 3.5 > 3.0 make four classes: above the first level, between each pair
+        // of neighbours and below the last.
+        let classes = crate::report::model::ThresholdClasses {
+            levels: vec![4.0, 3.5, 3.0],
+            labels: vec![String::new(); 4],
+            citation: String::new(),
+        };
+        let texts: Vec<String> = (0..4).map(|k| class_range_text(&classes, k)).collect();
+        assert_eq!(texts, ["≥ 4.0", "3.5–4.0", "3.0–3.5", "< 3.0"]);
     }
 
     proptest! {

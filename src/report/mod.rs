@@ -8,6 +8,7 @@
 //!     template: TemplateSource::BuiltIn,
 //!     pdfa: false,
 //!     timestamp_override: report::timestamp_from_env()?,
+//!     dated_by_user: true, // the model's timestamp is the site's `[report] date`
 //! };
 //! let rendered = report::write_pdf(&model, &options, Path::new("site.pdf"))?;
 //! report::write_data_json(&model, Path::new("site.json"))?;   // --data-out
@@ -22,6 +23,7 @@ pub mod fmt;
 pub mod model;
 pub mod output;
 pub mod palette;
+pub mod ranking;
 pub mod templates;
 pub mod view;
 

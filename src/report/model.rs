@@ -214,8 +214,11 @@ pub struct SiteReport {
     pub probabilities: Vec<BelowProbability>,
     pub calcification: Vec<CalcificationOutlook>,
     pub local_scenarios: Vec<LocalScenario>,
-    /// Thermal stress, when computed; `None` puts it under "not modelled".
-    pub thermal: Option<ThermalStress>,
+    /// Thermal stress is not computed yet: the report says so among its limitations and shows
+    /// no thermal-stress table. The field holds nothing (no value of this type exists) and is
+    /// not written out; it stays only while the model builder still sets it to `None`.
+    #[serde(skip)]
+    pub thermal: Option<std::convert::Infallible>,
     pub methods: Methods,
     /// Every sample for the appendix (only used when the appendix is requested).
     pub samples: Vec<SampleRow>,
@@ -430,25 +433,6 @@ pub struct ScenarioRow {
     pub omega_ar: Quantiles,
     /// Median Ω_ar without the scenario, for comparison.
     pub reference_median: Option<f64>,
-}
-
-/// Thermal stress, when computed.
-#[derive(Debug, Clone, Serialize)]
-pub struct ThermalStress {
-    pub method: String,
-    pub citation: String,
-    pub rows: Vec<ThermalRow>,
-}
-
-/// Thermal stress under one pathway in one year.
-#[derive(Debug, Clone, Serialize)]
-pub struct ThermalRow {
-    pub pathway: String,
-    pub year: i32,
-    /// Annual maximum Degree Heating Weeks, °C-weeks.
-    pub max_dhw: Quantiles,
-    /// Alert level of the median, as text.
-    pub alert: String,
 }
 
 /// The methods used for one site.

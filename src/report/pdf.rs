@@ -22,6 +22,27 @@ pub struct RenderOptions {
     pub pdfa: bool,
     /// Replaces the model's timestamp (pass [`super::timestamp_from_env`]'s value here).
     pub timestamp_override: Option<ReportTime>,
+    /// Whether the model's timestamp is a preparation date the user gave (`[report] date`).
+    /// When it is not and there is no override, the timestamp is only the data's last sample
+    /// time: the PDF keeps it as its creation time (same inputs, same bytes) but prints no
+    /// preparation date, and says how to set one.
+    pub dated_by_user: bool,
+}
+
+impl RenderOptions {
+    /// The dates of a report rendered with these options.
+    pub fn dates(&self, model: &ReportModel) -> view::Dates {
+        let timestamp = self.timestamp_override.unwrap_or(model.timestamp);
+        let prepared = if self.timestamp_override.is_some() || self.dated_by_user {
+            Some(timestamp)
+        } else {
+            None
+        };
+        view::Dates {
+            timestamp,
+            prepared,
+        }
+    }
 }
 
 /// A rendered report.
@@ -42,9 +63,10 @@ pub fn render(model: &ReportModel, options: &RenderOptions) -> Result<Rendered, 
             "a report needs at least one site".to_string(),
         ));
     }
-    let date = options.timestamp_override.unwrap_or(model.timestamp);
+    let dates = options.dates(model);
+    let date = dates.timestamp;
     let figs = figures::build_all(model)?;
-    let data = view::build(model, &figs, date);
+    let data = view::build(model, &figs, dates);
     let data_json = serde_json::to_vec(&data)
         .map_err(|e| ReportError::Model(format!("cannot serialise the report data: {e}")))?;
     let files: Vec<(String, Vec<u8>)> = figs
@@ -253,7 +275,7 @@ mod tests {
             );
         }
         // The best-ranked site is listed first in the ranking table.
-        let ranked = crate::report::view::rank_sites(&model);
+        let ranked = crate::report::ranking::rank_sites(&model);
         let first = &model.sites[ranked[0].site].name;
         let pos_first = text.find(&format!("1 {first}"));
         assert!(pos_first.is_some(), "rank 1 is not {first}");
@@ -477,32 +499,14 @@ mod tests {
     }
 
     #[test]
-    fn thermal_stress_section_and_limitation_follow_the_model() {
-        use crate::report::model::{Quantiles, ThermalRow, ThermalStress};
-        let mut model = example_model(1);
-        model.sites[0].thermal = Some(ThermalStress {
-            method: "Degree Heating Weeks from a delta method (example)".into(),
-            citation: "Skirving et al. (2020), Remote Sens. 12:3856 (example entry)".into(),
-            rows: vec![ThermalRow {
-                pathway: "ssp2-4.5".into(),
-                year: 2050,
-                max_dhw: Quantiles {
-                    p05: 2.0,
-                    p25: 3.5,
-                    p50: 4.4,
-                    p75: 5.0,
-                    p95: 7.1,
-                },
-                alert: "Alert Level 1".into(),
-            }],
-        });
-        let r = render(&model, &RenderOptions::default()).unwrap_or_else(|e| panic!("{e}"));
+    fn thermal_stress_is_listed_as_not_computed_and_has_no_table() {
+        let r = render_example(1);
         let text = text_of(&r.pdf);
-        assert!(text.contains("Thermal stress"));
-        assert!(text.contains("4.4 (2.0–7.1)"));
-        assert!(text.contains("Alert Level 1"));
-        assert!(text.contains("assessed only as Degree Heating Weeks"));
-        assert!(!text.contains("are not computed in this report"));
+        assert!(text.contains("Thermal stress: marine heatwaves and coral bleaching are not"));
+        assert!(text.contains("computed in this report"));
+        // No thermal-stress section or table: the phrase appears once, in the limitations.
+        assert_eq!(text.matches("Thermal stress").count(), 1, "{text}");
+        assert!(!text.contains("DHW"));
     }
 
     #[test]

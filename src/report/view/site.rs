@@ -1,0 +1,388 @@
+//! One site's part of the view: coverage, QC, baseline, verdict, projection tables, crossing
+//! years, chances below each level, calcification, local scenarios, methods and figures.
+
+use serde_json::{Value, json};
+
+use super::appendix::sample_files;
+use super::{crossing_text, fig, missing_cell, pathway_label, quant_cell};
+use crate::report::figures::{Figure, SiteFigures};
+use crate::report::fmt;
+use crate::report::model::{
+    CalcUnit, CalcificationOutlook, QcLevel, ReportModel, SiteReport, Stat,
+};
+use crate::report::palette;
+use crate::report::ranking::limiting_omega;
+
+/// The view of one site (see `templates/README.md` for its fields).
+pub(super) fn site_view(model: &ReportModel, site: &SiteReport, figs: &SiteFigures) -> Value {
+    let coords = match (site.latitude, site.longitude) {
+        (Some(lat), Some(lon)) => Some(format!(
+            "{}, {}",
+            fmt::coordinate(lat, 'N', 'S'),
+            fmt::coordinate(lon, 'E', 'W')
+        )),
+        _ => None,
+    };
+    let calcification: Vec<Value> = site
+        .calcification
+        .iter()
+        .enumerate()
+        .map(|(k, c)| calc_view(model, c, figs.calcification.get(k)))
+        .collect();
+    let samples = if model.include_appendix {
+        sample_files(site)
+    } else {
+        Vec::new()
+    };
+    json!({
+        "id": site.id,
+        "name": site.name,
+        "location": site.location,
+        "coords": coords,
+        "depth": site.depth_m.map(|d| format!("{} m", fmt::number(d, 1))),
+        "habitat": site.habitat,
+        "data_notice": site.data_notice,
+        "limiting_season": site.limiting_season(),
+        "coverage": coverage_view(site),
+        "qc": site.qc.iter().map(|q| json!({
+            "level": qc_level(q.level),
+            "count": q.count.to_string(),
+            "message": q.message,
+            "location": q.location,
+        })).collect::<Vec<_>>(),
+        "baseline": baseline_view(site),
+        "verdict": verdict_view(model, site),
+        "projection": projection_rows(model, site),
+        "crossings": crossing_list(model, site),
+        "crossing_table": crossing_table(model, site),
+        "probabilities": probability_rows(model, site),
+        "calcification": calcification,
+        "scenarios": scenario_views(model, site),
+        "methods": {
+            "chemistry": site.methods.chemistry.iter().map(|m| json!({
+                "quantity": m.quantity, "method": m.method, "citation": m.citation,
+            })).collect::<Vec<_>>(),
+            "projection": site.methods.projection.iter().map(|s| json!({
+                "name": s.name, "value": s.value,
+            })).collect::<Vec<_>>(),
+            "notes": site.methods.notes,
+        },
+        "figures": {
+            "seasonal": figs.seasonal.as_ref().map(fig),
+            "overview": figs.overview.as_ref().map(fig),
+            "fans": figs.fans.iter().map(|(id, f)| json!({
+                "pathway": pathway_label(model, id), "path": f.path(), "alt": f.alt,
+            })).collect::<Vec<_>>(),
+            "calcification_legend": figs.calcification_legend.as_ref().map(fig),
+        },
+        "sample_files": samples,
+    })
+}
+
+/// Per-season baseline statistics, formatted.
+fn baseline_view(site: &SiteReport) -> Vec<Value> {
+    site.baseline
+        .iter()
+        .map(|b| {
+            json!({
+                "season": b.season,
+                "n": b.n.to_string(),
+                "omega": stat_view(&b.omega_ar, fmt::omega),
+                "ph": stat_view(&b.ph_t, fmt::ph),
+                "temp": stat_view(&b.temp_c, fmt::temp),
+                "salinity": b.salinity.as_ref().map(|s| stat_view(s, fmt::salinity)),
+                "ta": b.ta.as_ref().map(|s| stat_view(s, fmt::micro)),
+                "dic": b.dic.as_ref().map(|s| stat_view(s, fmt::micro)),
+                "pco2": b.pco2.as_ref().map(|s| stat_view(s, fmt::micro)),
+                "omega_ca": b.omega_ca.as_ref().map(|s| stat_view(s, fmt::omega)),
+                "limiting": Some(b.season.as_str()) == site.limiting_season(),
+            })
+        })
+        .collect()
+}
+
+/// Projected Ω_ar per pathway and season at the horizon years, seasons in baseline order first.
+fn projection_rows(model: &ReportModel, site: &SiteReport) -> Vec<Value> {
+    let seasons: Vec<&str> = site.baseline.iter().map(|b| b.season.as_str()).collect();
+    let mut projection_rows = Vec::new();
+    for p in &model.pathways {
+        let Some(proj) = site.projection.iter().find(|x| x.pathway == p.id) else {
+            continue;
+        };
+        // Seasons in baseline order first, then any others the projection has.
+        let mut order: Vec<&str> = seasons.clone();
+        for s in &proj.seasons {
+            if !order.contains(&s.season.as_str()) {
+                order.push(&s.season);
+            }
+        }
+        for (i, season) in order.iter().enumerate() {
+            let Some(series) = proj.seasons.iter().find(|s| s.season == *season) else {
+                continue;
+            };
+            let cells: Vec<Value> = model
+                .horizons
+                .iter()
+                .map(|&y| match series.at(y) {
+                    Some(pt) if pt.omega_ar.p50.is_finite() => {
+                        let mut c = quant_cell(&pt.omega_ar, fmt::omega);
+                        c["class"] = json!(model.thresholds.classify(pt.omega_ar.p50));
+                        c["ph"] = json!(pt.ph_t.map(|q| fmt::ph(q.p50)));
+                        c
+                    }
+                    _ => missing_cell(),
+                })
+                .collect();
+            projection_rows.push(json!({
+                "pathway": p.label,
+                "first": i == 0,
+                "season": season,
+                "limiting": Some(*season) == site.limiting_season(),
+                "cells": cells,
+            }));
+        }
+    }
+    projection_rows
+}
+
+/// Every crossing year as a flat list.
+fn crossing_list(model: &ReportModel, site: &SiteReport) -> Vec<Value> {
+    site.crossings
+        .iter()
+        .map(|c| {
+            json!({
+                "pathway": pathway_label(model, &c.pathway),
+                "season": c.season,
+                "level": fmt::level(c.threshold),
+                "median": crossing_text(c.median),
+                "early": crossing_text(c.early),
+                "late": crossing_text(c.late),
+            })
+        })
+        .collect()
+}
+
+fn crossing_table(model: &ReportModel, site: &SiteReport) -> Vec<Value> {
+    let seasons: Vec<&str> = site.baseline.iter().map(|b| b.season.as_str()).collect();
+    // The same crossings as a table: one row per pathway and season, one cell per level
+    // (median year, with the early and late estimates), so that a site with twelve seasons
+    // gets 36 rows rather than 108.
+    let mut crossing_rows = Vec::new();
+    for p in &model.pathways {
+        let mut first = true;
+        for season in &seasons {
+            let cells: Vec<Value> = model
+                .thresholds
+                .levels
+                .iter()
+                .map(|level| {
+                    site.crossings
+                        .iter()
+                        .find(|c| c.pathway == p.id && c.season == *season && c.threshold == *level)
+                        .map_or_else(
+                            || json!({ "median": fmt::MISSING, "early": "", "late": "" }),
+                            |c| {
+                                json!({
+                                    "median": crossing_text(c.median),
+                                    "early": crossing_text(c.early),
+                                    "late": crossing_text(c.late),
+                                })
+                            },
+                        )
+                })
+                .collect();
+            if cells.iter().all(|c| c["median"] == fmt::MISSING) {
+                continue;
+            }
+            crossing_rows.push(json!({
+                "pathway": p.label,
+                "first": first,
+                "season": season,
+                "limiting": Some(*season) == site.limiting_season(),
+                "cells": cells,
+            }));
+            first = false;
+        }
+    }
+    crossing_rows
+}
+
+fn probability_rows(model: &ReportModel, site: &SiteReport) -> Vec<Value> {
+    // Chance below each level: rows pathway × horizon (limiting season), columns levels.
+    let season = site.limiting_season().unwrap_or_default();
+    let mut probability_rows = Vec::new();
+    for p in &model.pathways {
+        for &y in &model.horizons {
+            let cells: Vec<String> = model
+                .thresholds
+                .levels
+                .iter()
+                .map(|level| {
+                    site.probabilities
+                        .iter()
+                        .find(|b| {
+                            b.pathway == p.id
+                                && b.year == y
+                                && b.season == season
+                                && b.threshold == *level
+                        })
+                        .map_or_else(
+                            || fmt::MISSING.to_string(),
+                            |b| format!("{} %", fmt::number(b.percent, 0)),
+                        )
+                })
+                .collect();
+            if cells.iter().any(|c| c != fmt::MISSING) {
+                probability_rows.push(json!({
+                    "pathway": p.label, "year": y.to_string(), "cells": cells,
+                }));
+            }
+        }
+    }
+    probability_rows
+}
+
+/// Local scenarios beside the base case.
+fn scenario_views(model: &ReportModel, site: &SiteReport) -> Vec<Value> {
+    site
+        .local_scenarios
+        .iter()
+        .map(|s| {
+            json!({
+                "name": s.name,
+                "description": s.description,
+                "rows": s.rows.iter().map(|r| {
+                    let delta = r.reference_median.map(|m| fmt::signed(r.omega_ar.p50 - m, 2));
+                    json!({
+                        "pathway": pathway_label(model, &r.pathway),
+                        "year": r.year.to_string(),
+                        "season": r.season,
+                        "median": fmt::omega(r.omega_ar.p50),
+                        "range": fmt::range(&fmt::omega(r.omega_ar.p05), &fmt::omega(r.omega_ar.p95)),
+                        "reference": r.reference_median.map(fmt::omega),
+                        "delta": delta,
+                    })
+                }).collect::<Vec<_>>(),
+            })
+        })
+        .collect()
+}
+
+fn stat_view(s: &Stat, f: fn(f64) -> String) -> Value {
+    let mean_sd = if s.sd.is_finite() {
+        format!("{} ± {}", f(s.mean), f(s.sd))
+    } else {
+        f(s.mean)
+    };
+    json!({
+        "mean": f(s.mean),
+        "sd": f(s.sd),
+        "min": f(s.min),
+        "max": f(s.max),
+        "mean_sd": mean_sd,
+        "range": fmt::range(&f(s.min), &f(s.max)),
+    })
+}
+
+fn qc_level(level: QcLevel) -> &'static str {
+    match level {
+        QcLevel::Note => "note",
+        QcLevel::Warning => "warning",
+        QcLevel::Excluded => "excluded",
+    }
+}
+
+fn verdict_view(model: &ReportModel, site: &SiteReport) -> Value {
+    let rows: Vec<Value> = model
+        .pathways
+        .iter()
+        .map(|p| {
+            let cells: Vec<Value> = model
+                .horizons
+                .iter()
+                .map(|&y| match limiting_omega(site, &p.id, y) {
+                    Some(q) => {
+                        let class = model.thresholds.classify(q.p50);
+                        let mut c = quant_cell(&q, fmt::omega);
+                        c["class"] = json!(class);
+                        c["class_label"] =
+                            json!(class.and_then(|k| model.thresholds.labels.get(k)).cloned());
+                        c["fill"] = json!(class.map(|k| palette::hex(palette::class_fill(k))));
+                        c
+                    }
+                    None => missing_cell(),
+                })
+                .collect();
+            json!({ "pathway": p.label, "cells": cells })
+        })
+        .collect();
+    json!({ "season": site.limiting_season(), "rows": rows })
+}
+
+fn coverage_view(site: &SiteReport) -> Value {
+    let c = &site.coverage;
+    json!({
+        "files": c.record_files,
+        "records": c.n_records.to_string(),
+        "used": c.n_used.to_string(),
+        "first": c.first_date,
+        "last": c.last_date,
+        "stations": c.stations.join(", "),
+        "n_stations": c.stations.len().to_string(),
+        // Seasons named after single months need no months column.
+        "months_column": c.seasons.iter().any(|s| s.months != s.season),
+        "seasons": c.seasons.iter().map(|s| json!({
+            "season": s.season,
+            "months": s.months,
+            "records": s.n_records.to_string(),
+            "used": s.n_used.to_string(),
+            "years": s.n_years.to_string(),
+            "first": s.first_date.clone().unwrap_or_else(|| fmt::MISSING.to_string()),
+            "last": s.last_date.clone().unwrap_or_else(|| fmt::MISSING.to_string()),
+            "thin": s.n_used < 3,
+        })).collect::<Vec<_>>(),
+    })
+}
+
+fn calc_view(model: &ReportModel, c: &CalcificationOutlook, figure: Option<&Figure>) -> Value {
+    let f = move |x: f64| fmt::calc(x, c.unit);
+    let unit = match c.unit {
+        CalcUnit::PercentChange => "% change from present",
+        CalcUnit::KgCaco3PerM2Year => "kg CaCO₃ m⁻² yr⁻¹",
+    };
+    let mut any_extrapolated = false;
+    let rows: Vec<Value> = model
+        .pathways
+        .iter()
+        .filter_map(|p| {
+            let s = c.series.iter().find(|s| s.pathway == p.id)?;
+            let cells: Vec<Value> = model
+                .horizons
+                .iter()
+                .map(|&y| match s.points.iter().find(|pt| pt.year == y) {
+                    Some(pt) if pt.value.p50.is_finite() => {
+                        any_extrapolated |= pt.extrapolated;
+                        json!({
+                            "median": f(pt.value.p50),
+                            "range": fmt::range(&f(pt.value.p05), &f(pt.value.p95)),
+                            "extrapolated": pt.extrapolated,
+                        })
+                    }
+                    _ => json!({ "median": fmt::MISSING, "range": "", "extrapolated": false }),
+                })
+                .collect();
+            Some(json!({ "pathway": p.label, "cells": cells }))
+        })
+        .collect();
+    json!({
+        "relationship": c.relationship,
+        "citation": c.citation,
+        "unit": unit,
+        "valid_range": c.valid_range,
+        "baseline": c.baseline.map(f),
+        "note": c.note,
+        "rows": rows,
+        "any_extrapolated": any_extrapolated,
+        "figure": figure.map(fig),
+    })
+}
