@@ -6,7 +6,8 @@
 //! * [`chem`]: the marine carbonate system (constants, pressure corrections, pH scales, solvers);
 //! * [`site`]: the site description (TOML), record files (CSV), quality control, seasonal baseline;
 //! * [`outlook`]: CO2 pathways, the Monte Carlo projection, thresholds, calcification outlook;
-//! * [`report`]: the report model, figures and the embedded typesetter that writes the PDF.
+//! * [`report`]: the report model, figures and the embedded typesetter that writes the PDF;
+//! * [`pipeline`]: load → check → outlook → report model, shared by every command.
 //!
 //! `main.rs` only parses arguments and prints.
 
@@ -16,5 +17,6 @@ pub mod diag;
 pub mod fsio;
 pub mod numfmt;
 pub mod outlook;
+pub mod pipeline;
 pub mod report;
 pub mod site;

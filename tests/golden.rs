@@ -72,7 +72,10 @@ fn compare(name: &str, bytes: &[u8]) -> Option<String> {
     if want == bytes {
         return None;
     }
-    let (w, g) = (String::from_utf8_lossy(&want), String::from_utf8_lossy(bytes));
+    let (w, g) = (
+        String::from_utf8_lossy(&want),
+        String::from_utf8_lossy(bytes),
+    );
     let first = w
         .lines()
         .zip(g.lines())
@@ -126,7 +129,10 @@ fn project_outputs_match_the_goldens() {
         // runs to megabytes, so only its digest is kept.
         let out = run(&["project", &site, "--format", "json"]);
         let digest = format!("{}\n", sha256_hex(&out));
-        diffs.extend(compare(&format!("project-{s}.json.sha256"), digest.as_bytes()));
+        diffs.extend(compare(
+            &format!("project-{s}.json.sha256"),
+            digest.as_bytes(),
+        ));
     }
     assert!(diffs.is_empty(), "{}", diffs.join("\n"));
 }

@@ -13,7 +13,7 @@ use serde::Serialize;
 use super::{EXIT_INPUT, EXIT_OK};
 use crate::diag::{Diagnostic, Diagnostics, Severity, colour_wanted};
 use crate::site::baseline::{Stats, TaModelKind};
-use crate::site::{Finding, FindingKind, LoadFailure, LoadedSite, load_site};
+use crate::site::{Finding, FindingKind, LoadFailure, LoadedSite};
 
 /// Output format of `check`.
 #[derive(clap::ValueEnum, Clone, Copy, Debug, Default, PartialEq, Eq)]
@@ -52,23 +52,16 @@ struct JsonOut<'a> {
 pub fn run_check(args: &CheckArgs) -> i32 {
     let colour = colour_wanted(false);
     let verbose = crate::diag::verbose();
-    let loaded = load_site(&args.site).and_then(|site| {
-        // The projection settings are checked here too, so that `check` passing means
-        // `project` and `report` accept the site file.
-        match crate::outlook::from_site::projection_settings(&site) {
-            Ok(_) => Ok(site),
-            Err(ds) => {
-                let mut all: Diagnostics = ds.into_iter().map(|d| site.locate(d)).collect();
-                let position = all.len();
-                all.extend(site.findings.iter().cloned());
-                Err(LoadFailure {
-                    diagnostics: all,
-                    rows: site.qc,
-                    rows_position: position + site.qc_position,
-                })
-            }
+    // The same checks `project` and `report` run (pipeline::load_checked), so that `check`
+    // passing means they accept the site file.
+    let loaded = match crate::pipeline::load_checked(&args.site, Default::default()) {
+        Ok(checked) => Ok(checked.loaded),
+        Err(crate::pipeline::Failure::Load(fail)) => Err(fail),
+        Err(crate::pipeline::Failure::Outlook(e)) => {
+            eprintln!("error: {}: {e}", args.site.display());
+            return EXIT_INPUT;
         }
-    });
+    };
     match loaded {
         Ok(site) => {
             let shown = site_diagnostics(&site, verbose);

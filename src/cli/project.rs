@@ -16,17 +16,18 @@ use clap::Args;
 use crate::diag::colour_wanted;
 use crate::fsio;
 use crate::outlook::{self, Outlook, OutputFormat, OutputTable, Progress};
-use crate::site::{LoadedSite, load_site};
+use crate::pipeline::{self, RunStatus};
+use crate::site::LoadedSite;
 
-use super::{EXIT_INPUT, EXIT_OK, EXIT_PARTIAL};
+use super::EXIT_INPUT;
 
 /// Arguments of `calcisite project`.
 #[derive(Args, Debug, Clone)]
 #[command(after_help = "Examples:
-  calcisite project sites/demo-reef.toml -o outlook.csv
-  calcisite project sites/demo-reef.toml --format json -o outlook.json
-  calcisite project sites/demo-reef.toml --table crossings
-  calcisite project sites/demo-reef.toml --members 0      (ensemble off: records only)
+  calcisite project sites/tala-vesi-forereef.toml -o outlook.csv
+  calcisite project sites/tala-vesi-forereef.toml --format json -o outlook.json
+  calcisite project sites/tala-vesi-forereef.toml --table crossings
+  calcisite project sites/tala-vesi-forereef.toml --members 0      (ensemble off: records only)
 
 CSV columns (quantiles table): pathway, scenario, year, season, quantity, p05, p25, p50,
 p75, p95, members, outside_fit_pct. Quantities carry their unit in the name (omega_ar,
@@ -71,16 +72,12 @@ impl Progress for Bar {
 }
 
 /// Overrides of the site file's ensemble settings from the command line.
-#[derive(Clone, Copy, Debug, Default)]
-pub struct EnsembleOverrides {
-    pub seed: Option<u64>,
-    pub members: Option<usize>,
-    pub threads: Option<usize>,
-}
+pub use crate::pipeline::Overrides as EnsembleOverrides;
 
-/// Loads, checks and projects one site, printing its diagnostics to standard error. `Err`
-/// carries the exit status after the message was printed. The progress bar appears only
-/// when `progress` is true and standard error is a terminal.
+/// Loads, checks and projects one site through [`crate::pipeline`], printing its
+/// diagnostics to standard error. `Err` carries the exit status after the message was
+/// printed. The progress bar appears only when `progress` is true and standard error is a
+/// terminal.
 pub fn load_and_project(
     path: &Path,
     overrides: EnsembleOverrides,
@@ -88,21 +85,14 @@ pub fn load_and_project(
     all_findings: bool,
 ) -> Result<(LoadedSite, Outlook), i32> {
     let colour = colour_wanted(false);
-    let loaded = match load_site(path) {
-        Ok(l) => l,
-        Err(fail) => {
-            let diags = super::check::failure_diagnostics(&fail, crate::diag::verbose());
-            eprint!("{}", diags.render(colour));
-            eprintln!(
-                "{}: the site cannot be projected until the errors above are fixed",
-                path.display()
-            );
-            return Err(EXIT_INPUT);
-        }
+    let checked = match pipeline::load_checked(path, overrides) {
+        Ok(c) => c,
+        Err(failure) => return Err(print_failure(path, &failure, colour)),
     };
+    let loaded = &checked.loaded;
     if (!loaded.findings.is_empty() || !loaded.qc.is_empty()) && !crate::diag::quiet() {
         if all_findings || crate::diag::verbose() {
-            let shown = super::check::site_diagnostics(&loaded, crate::diag::verbose());
+            let shown = super::check::site_diagnostics(loaded, crate::diag::verbose());
             eprint!("{}", shown.render(colour));
         } else {
             let w = loaded.count(crate::diag::Severity::Warning);
@@ -114,21 +104,6 @@ pub fn load_and_project(
             );
         }
     }
-    let (site, mut settings) = match outlook::from_loaded_site(&loaded) {
-        Ok(v) => v,
-        Err(diags) => {
-            eprint!("{}", diags.render(colour));
-            return Err(EXIT_INPUT);
-        }
-    };
-    if let Some(seed) = overrides.seed {
-        settings.ensemble.seed = seed;
-    }
-    if let Some(m) = overrides.members {
-        settings.ensemble.members = m;
-    }
-    settings.ensemble.threads = overrides.threads;
-
     let result = if progress && io::stderr().is_terminal() && !crate::diag::quiet() {
         let bar = indicatif::ProgressBar::new(0);
         if let Ok(style) = indicatif::ProgressStyle::with_template(
@@ -137,24 +112,32 @@ pub fn load_and_project(
             bar.set_style(style.progress_chars("=> "));
         }
         bar.set_message("projecting");
-        let r = outlook::run(&site, &settings, &Bar(bar.clone()));
+        let r = pipeline::project(checked, &Bar(bar.clone()));
         bar.finish_and_clear();
         r
     } else {
-        outlook::run(&site, &settings, &outlook::NoProgress)
+        pipeline::project(checked, &outlook::NoProgress)
     };
     match result {
-        Ok(o) => Ok((loaded, o)),
-        Err(e) => {
-            eprintln!("error: {}: {e}", path.display());
-            Err(EXIT_INPUT)
-        }
+        Ok(run) => Ok((run.loaded, run.outlook)),
+        Err(failure) => Err(print_failure(path, &failure, colour)),
     }
 }
 
-/// True when an outlook could not solve some ensemble members.
-pub fn has_unsolved(outlook: &Outlook) -> bool {
-    outlook.unsolved_member_years() > 0
+/// Prints why a site stopped in the pipeline; returns the exit status.
+fn print_failure(path: &Path, failure: &pipeline::Failure, colour: bool) -> i32 {
+    match failure {
+        pipeline::Failure::Load(fail) => {
+            let diags = super::check::failure_diagnostics(fail, crate::diag::verbose());
+            eprint!("{}", diags.render(colour));
+            eprintln!(
+                "{}: the site cannot be projected until the errors above are fixed",
+                path.display()
+            );
+        }
+        pipeline::Failure::Outlook(e) => eprintln!("error: {}: {e}", path.display()),
+    }
+    RunStatus::InputError.exit_code()
 }
 
 /// Runs `project`; returns the exit status.
@@ -200,9 +183,5 @@ pub fn run_project(args: &ProjectArgs) -> i32 {
             eprintln!("note: {note}");
         }
     }
-    if has_unsolved(&outlook) {
-        EXIT_PARTIAL
-    } else {
-        EXIT_OK
-    }
+    RunStatus::of_outlook(&outlook).exit_code()
 }

@@ -139,9 +139,10 @@ fn run_report_sites(_args: &ReportArgs) -> i32 {
 fn run_report_sites(args: &ReportArgs) -> i32 {
     use rayon::prelude::*;
 
+    use super::EXIT_INPUT;
     use super::project::{EnsembleOverrides, load_and_project};
-    use super::{EXIT_INPUT, EXIT_OK};
-    use crate::report::build::{BuildOptions, SiteRun, build_model};
+    use crate::pipeline::{RunStatus, SiteRun, report_model};
+    use crate::report::build::BuildOptions;
 
     let Some(out) = args.output.as_deref() else {
         eprintln!("error: no output file given (use -o FILE.pdf)");
@@ -167,7 +168,7 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
         .collect();
     let mut runs = Vec::with_capacity(results.len());
     let mut failed = Vec::new();
-    for (site, r) in &results {
+    for (site, r) in results {
         match r {
             Ok((loaded, outlook)) => runs.push(SiteRun { loaded, outlook }),
             Err(_) => failed.push(site.display().to_string()),
@@ -215,7 +216,7 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
         appendix: args.appendix,
         command: Some(command),
     };
-    let model = match build_model(&runs, &opts) {
+    let model = match report_model(&runs, &opts) {
         Ok(m) => m,
         Err(e) => {
             eprintln!("error: {e}");
@@ -230,7 +231,14 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
                 eprint!("{}", rendered.warnings);
                 eprintln!("wrote {} ({} pages)", out.display(), rendered.pages);
             }
-            EXIT_OK
+            // Exit 3 when ensemble members could not be solved at any site (README).
+            let status = RunStatus::worst(runs.iter().map(|r| RunStatus::of_outlook(&r.outlook)));
+            if status == RunStatus::Partial && !crate::diag::quiet() {
+                eprintln!(
+                    "some ensemble member-years could not be solved; see the notes in the report"
+                );
+            }
+            status.exit_code()
         }
         Err(e) => {
             eprintln!("error: {e}");

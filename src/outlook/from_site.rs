@@ -26,20 +26,24 @@ pub fn from_loaded_site(
     loaded: &LoadedSite,
 ) -> Result<(SiteInput, ProjectionSettings), Diagnostics> {
     let settings = projection_settings(loaded)?;
+    Ok((site_input(loaded), settings))
+}
+
+/// The records of a loaded site as the outlook takes them.
+pub fn site_input(loaded: &LoadedSite) -> SiteInput {
     let ta_fit_rmse = loaded.baseline.ta_salinity.as_ref().map(|f| f.rmse_umol_kg);
     let records: Vec<ProjectionRecord> = loaded
         .samples
         .iter()
         .filter_map(|smp| record_of(smp, ta_fit_rmse))
         .collect();
-    let site = SiteInput {
+    SiteInput {
         name: loaded.site.site.name.clone(),
         seasons: loaded.seasons.iter().map(|s| s.name.clone()).collect(),
         records,
         methods: loaded.methods,
         observed: Observed::noaa(),
-    };
-    Ok((site, settings))
+    }
 }
 
 /// The projection settings of a loaded site, checked, without building the per-record
