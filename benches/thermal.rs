@@ -53,7 +53,9 @@ fn bench(c: &mut Criterion) {
         members: 1000,
     };
     let mut group = c.benchmark_group("thermal");
-    group.sample_size(10).measurement_time(Duration::from_secs(20));
+    group
+        .sample_size(10)
+        .measurement_time(Duration::from_secs(20));
     group.bench_function("ten_years_hourly_5_pathways_1000_members", |b| {
         b.iter(|| {
             let (daily, _) = daily_means(black_box(&readings)).expect("valid record");

@@ -12,8 +12,9 @@
 
 use std::path::Path;
 
-use crate::diag::Diagnostics;
-use crate::outlook::{self, Outlook, Progress, ProjectionSettings, SiteInput};
+use crate::diag::{Diagnostic, Diagnostics};
+use crate::outlook::{self, Outlook, Progress, ProjectionSettings, SiteInput, thermal};
+use crate::site::temperature::{ThermalRecord, ThermalSource, load_thermal};
 use crate::site::{LoadFailure, LoadedSite, load_site};
 
 /// Command-line overrides of the site file's ensemble settings.
@@ -30,6 +31,8 @@ pub struct Checked {
     pub loaded: LoadedSite,
     /// The validated projection settings (overrides applied).
     pub settings: ProjectionSettings,
+    /// The temperature record for the thermal outlook, when the site has one.
+    pub thermal: Option<ThermalRecord>,
 }
 
 /// A projected site.
@@ -64,10 +67,59 @@ pub fn load_checked(path: &Path, overrides: Overrides) -> Result<Checked, Failur
                 settings.ensemble.members = m;
             }
             settings.ensemble.threads = overrides.threads;
-            Ok(Checked { loaded, settings })
+            let mut loaded = loaded;
+            let thermal = match load_thermal_checked(&loaded) {
+                Ok(t) => t,
+                Err(ds) => return Err(Failure::Load(settings_failure(loaded, ds))),
+            };
+            if let Some(ThermalSource::Logger { path, .. }) = thermal.as_ref().map(|t| &t.source) {
+                loaded.input_files.push(path.clone());
+            }
+            Ok(Checked {
+                loaded,
+                settings,
+                thermal,
+            })
         }
         Err(ds) => Err(Failure::Load(settings_failure(loaded, ds))),
     }
+}
+
+/// The site's temperature record, read and checked so that the thermal outlook will run:
+/// problems name the logger file's line or the site file's `thermal.*` field.
+fn load_thermal_checked(loaded: &LoadedSite) -> Result<Option<ThermalRecord>, Diagnostics> {
+    let record = load_thermal(
+        &loaded.path,
+        loaded.site.thermal.as_ref(),
+        loaded.utc_offset,
+        &loaded.samples,
+    )?;
+    let Some(record) = record else {
+        return Ok(None);
+    };
+    if let Err(e) = thermal::site::check_record(&record) {
+        let file = match &record.source {
+            ThermalSource::Logger { path, .. } => path.clone(),
+            ThermalSource::SensorRecords { .. } => loaded.path.clone(),
+        };
+        let line = match e {
+            thermal::HeatError::NotIncreasing { index }
+            | thermal::HeatError::OutOfRange { index, .. } => {
+                record.readings.get(index).map(|r| r.line)
+            }
+            _ => None,
+        };
+        let mut d = Diagnostic::error(format!("thermal-stress record: {e}")).with_file(file);
+        if let Some(line) = line {
+            d = d.with_line(line);
+        } else if record.stated_mmm.is_none() {
+            d = d.with_help(
+                "a year or more of daily or sub-daily temperatures, or [thermal] mmm_c with mmm_source and mmm_base_period",
+            );
+        }
+        return Err(Diagnostics::from(d));
+    }
+    Ok(Some(record))
 }
 
 /// The settings' diagnostics located in the site file, followed by the site's own findings.
@@ -85,7 +137,15 @@ fn settings_failure(site: LoadedSite, ds: Diagnostics) -> LoadFailure {
 /// Runs the outlook of a checked site.
 pub fn project(checked: Checked, progress: &dyn Progress) -> Result<SiteRun, Failure> {
     let input: SiteInput = outlook::from_site::site_input(&checked.loaded);
-    let outlook = outlook::run(&input, &checked.settings, progress).map_err(Failure::Outlook)?;
+    let mut outlook =
+        outlook::run(&input, &checked.settings, progress).map_err(Failure::Outlook)?;
+    if let Some(record) = &checked.thermal {
+        // Checked in `load_checked`; a failure here is an input the check let through.
+        outlook.heat = Some(
+            thermal::site::site_heat(record, &checked.settings)
+                .map_err(|e| Failure::Outlook(outlook::OutlookError::Input(e.to_string())))?,
+        );
+    }
     Ok(SiteRun {
         loaded: checked.loaded,
         outlook,

@@ -65,6 +65,8 @@ pub enum OutputTable {
     Crossings,
     /// Probability of lying below each habitat threshold per horizon year.
     Thresholds,
+    /// The thermal-stress outlook: observed and projected annual maximum DHW.
+    Heat,
 }
 
 impl FromStr for OutputTable {
@@ -74,8 +76,9 @@ impl FromStr for OutputTable {
             "quantiles" => Ok(OutputTable::Quantiles),
             "crossings" => Ok(OutputTable::Crossings),
             "thresholds" => Ok(OutputTable::Thresholds),
+            "heat" => Ok(OutputTable::Heat),
             o => Err(format!(
-                "unknown table \"{o}\" (expected quantiles, crossings or thresholds)"
+                "unknown table \"{o}\" (expected quantiles, crossings, thresholds or heat)"
             )),
         }
     }
@@ -244,6 +247,9 @@ impl Outlook {
             (OutputFormat::Csv, OutputTable::Quantiles) => self.write_quantiles_csv(w),
             (OutputFormat::Csv, OutputTable::Crossings) => self.write_crossings_csv(w),
             (OutputFormat::Csv, OutputTable::Thresholds) => self.write_thresholds_csv(w),
+            (OutputFormat::Csv, OutputTable::Heat) => {
+                super::thermal::output::write_heat_csv(self.heat.as_ref(), w)
+            }
         }
     }
 
@@ -392,6 +398,8 @@ struct JsonDoc<'a> {
     thresholds: JsonThresholds<'a>,
     calcification: JsonCalc<'a>,
     notes: Vec<String>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    thermal_stress: Option<super::thermal::output::JsonHeat<'a>>,
 }
 
 #[derive(Serialize)]
@@ -643,6 +651,7 @@ impl<'a> From<&'a Outlook> for JsonDoc<'a> {
                     .collect(),
             },
             notes: o.notes.iter().map(|n| n.to_string()).collect(),
+            thermal_stress: o.heat.as_ref().map(Into::into),
         }
     }
 }

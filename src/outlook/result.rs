@@ -369,6 +369,9 @@ pub struct Outlook {
     pub calcification_baseline_source: String,
     /// Warnings and notes (range flags, failed members, skipped seasons).
     pub notes: Vec<Note>,
+    /// The thermal-stress outlook, when the site has a temperature record
+    /// ([`crate::pipeline::project`] fills it in).
+    pub heat: Option<super::thermal::site::SiteHeat>,
 }
 
 impl Outlook {

@@ -41,6 +41,9 @@ pub struct SiteFile {
     pub scenario: Vec<LocalScenario>,
     #[serde(default)]
     pub report: ReportSpec,
+    /// `[thermal]`: the temperature record for the thermal-stress outlook (optional).
+    #[serde(default)]
+    pub thermal: Option<crate::site::temperature::ThermalSpec>,
 }
 
 /// `[site]`: what and where the candidate site is.

@@ -100,6 +100,7 @@ pub(super) fn assemble(prep: &Prepared<'_>, outs: &[TaskOut]) -> Outlook {
         calcification_baseline_kg_m2_yr: s.calcification.baseline_rate_kg_m2_yr,
         calcification_baseline_source: s.calcification.baseline_rate_source.clone(),
         notes,
+        heat: None,
     }
 }
 

@@ -32,7 +32,9 @@
 
 pub mod daily;
 pub mod dhw;
+pub mod output;
 pub mod projection;
+pub mod site;
 
 pub use daily::{DailySeries, TimedTemp, daily_means};
 pub use dhw::{Climatology, DhwSeries, annual_maxima, climatology, dhw_series};
