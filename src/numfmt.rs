@@ -43,8 +43,8 @@ const POW10_U64: [u64; 16] = [
     1_000_000_000_000_000,
 ];
 
-/// Largest scaled magnitude taken by the fast path: below 2^52 every integer and every
-/// half-integer distance is exact, and the digits fit a u64.
+/// Largest scaled magnitude taken by the fast path: below 2^52 the fraction of the scaled
+/// value is exact and the digits fit a u64.
 const FAST_LIMIT: f64 = 4_503_599_627_370_496.0; // 2^52
 
 /// Append `v` with exactly `decimals` decimals (see the module doc for the rule). Returns
@@ -57,22 +57,15 @@ pub fn push_fixed(buf: &mut String, v: f64, decimals: usize) -> bool {
     if let (Some(&scale), Some(&unit)) = (POW10.get(decimals), POW10_U64.get(decimals)) {
         let p = (v * scale).abs();
         if p < FAST_LIMIT {
-            let floor = p.floor();
-            let frac = p - floor; // exact below 2^52
+            // Truncation is the floor for 0 ≤ p < 2^52, and exact.
+            let floor = p as u64;
+            let frac = p - floor as f64; // exact below 2^52
             // The exact product v·10^d differs from p by at most half an ulp of p (10^d is
             // exact); away from a half by more than one ulp both round alike.
             let margin = p * f64::EPSILON + f64::MIN_POSITIVE;
             if (frac - 0.5).abs() > margin {
-                // floor < 2^52, so the conversion is exact.
-                let n = floor as u64 + u64::from(frac > 0.5);
-                if v < 0.0 && n != 0 {
-                    buf.push('-');
-                }
-                push_digits(buf, n / unit, 1);
-                if decimals > 0 {
-                    buf.push('.');
-                    push_digits(buf, n % unit, decimals);
-                }
+                let n = floor + u64::from(frac > 0.5);
+                push_scaled(buf, n, decimals, unit, v < 0.0 && n != 0);
                 return true;
             }
         }
@@ -91,19 +84,41 @@ pub fn fixed(v: f64, decimals: usize) -> Option<String> {
     push_fixed(&mut s, v, decimals).then_some(s)
 }
 
-/// Append the decimal digits of `x`, left-padded with zeros to at least `width`.
-fn push_digits(buf: &mut String, mut x: u64, width: usize) {
-    let mut digits = [b'0'; 20];
-    let mut len = 0;
-    while (x > 0 || len < width) && len < digits.len() {
-        if let Some(d) = digits.get_mut(len) {
-            *d = b'0' + (x % 10) as u8;
+/// Append `n / 10^decimals` (`unit` = 10^decimals) with exactly `decimals` decimals, and a
+/// minus sign first when `negative`: the digits are made in a small array and appended at
+/// once.
+fn push_scaled(buf: &mut String, n: u64, decimals: usize, unit: u64, negative: bool) {
+    // u64 has at most 20 digits; with a sign, a point and leading zeros of a fraction of at
+    // most 15 digits, 40 bytes always suffice.
+    let mut out = [b'0'; 40];
+    let mut pos = out.len();
+    let mut put = |d: u8, pos: &mut usize| {
+        *pos = pos.saturating_sub(1);
+        if let Some(slot) = out.get_mut(*pos) {
+            *slot = d;
         }
-        x /= 10;
-        len += 1;
+    };
+    let (mut int, mut frac) = (n / unit, n % unit);
+    for _ in 0..decimals {
+        put(b'0' + (frac % 10) as u8, &mut pos);
+        frac /= 10;
     }
-    for &d in digits.iter().take(len).rev() {
-        buf.push(char::from(d));
+    if decimals > 0 {
+        put(b'.', &mut pos);
+    }
+    loop {
+        put(b'0' + (int % 10) as u8, &mut pos);
+        int /= 10;
+        if int == 0 {
+            break;
+        }
+    }
+    if negative {
+        put(b'-', &mut pos);
+    }
+    // Only ASCII digits, '.' and '-' were written.
+    if let Some(Ok(text)) = out.get(pos..).map(std::str::from_utf8) {
+        buf.push_str(text);
     }
 }
 

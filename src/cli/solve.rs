@@ -98,6 +98,8 @@ struct Layout {
     ph_scale: PhScale,
     /// For each output column: the input index it fills in place, if any.
     outputs: Vec<Option<usize>>,
+    /// For each input column: the output column it receives in place, if any.
+    in_place: Vec<Option<usize>>,
     input_width: usize,
 }
 
@@ -143,6 +145,9 @@ impl Layout {
             carbonate,
             ph_scale,
             outputs: OUTPUT_COLUMNS.iter().map(|c| find(c)).collect(),
+            in_place: (0..header.len())
+                .map(|i| OUTPUT_COLUMNS.iter().position(|c| find(c) == Some(i)))
+                .collect(),
             input_width: header.len(),
         })
     }
@@ -156,13 +161,6 @@ impl Layout {
         }
         out
     }
-}
-
-/// The result of one row: the values to write and whether it was solved.
-struct RowOut {
-    /// All output fields in one buffer (one allocation per row).
-    fields: csv::ByteRecord,
-    solved: bool,
 }
 
 /// What solving one row gave: the state and pair when solved, and the `problem` notes.
@@ -334,11 +332,17 @@ fn solve_row(rec: &csv::StringRecord, layout: &Layout, methods: &MethodSet) -> R
     }
 }
 
-fn process(rec: &csv::StringRecord, layout: &Layout, methods: &MethodSet) -> RowOut {
+/// Solve one row and put its output fields into `fields`; returns whether it was solved.
+fn process(
+    rec: &csv::StringRecord,
+    layout: &Layout,
+    methods: &MethodSet,
+    fields: &mut csv::ByteRecord,
+    scratch: &mut String,
+) -> bool {
     let RowResult { solved, notes } = solve_row(rec, layout, methods);
     // The text of output column `k`, or false for an unsolved value (an in-place column then
     // keeps the input's text). `problem` and `pair_used` are always written.
-    let mut scratch = String::with_capacity(16);
     let text = |k: usize, buf: &mut String| -> bool {
         buf.clear();
         let name = OUTPUT_COLUMNS.get(k).copied().unwrap_or("problem");
@@ -362,30 +366,54 @@ fn process(rec: &csv::StringRecord, layout: &Layout, methods: &MethodSet) -> Row
             (_, None) => false,
         }
     };
-    let mut fields = csv::ByteRecord::with_capacity(
-        rec.as_slice().len() + 160,
-        layout.input_width + OUTPUT_COLUMNS.len(),
-    );
+    fields.clear();
     for i in 0..layout.input_width {
         let input = rec.get(i).unwrap_or("");
-        match layout.outputs.iter().position(|slot| *slot == Some(i)) {
-            Some(k) if text(k, &mut scratch) => fields.push_field(scratch.as_bytes()),
+        match layout.in_place.get(i).copied().flatten() {
+            Some(k) if text(k, scratch) => fields.push_field(scratch.as_bytes()),
             _ => fields.push_field(input.as_bytes()),
         }
     }
     for (k, slot) in layout.outputs.iter().enumerate() {
         if slot.is_none() {
-            if text(k, &mut scratch) {
+            if text(k, scratch) {
                 fields.push_field(scratch.as_bytes());
             } else {
                 fields.push_field(b"");
             }
         }
     }
-    RowOut {
-        fields,
-        solved: solved.is_some(),
+    solved.is_some()
+}
+
+/// Rows per output buffer: each worker writes this many rows into its own CSV buffer.
+const SUB_ROWS: usize = 1024;
+
+/// A CSV writer configured as every output of `solve` (the same bytes whoever writes).
+fn csv_writer(capacity: usize) -> csv::Writer<Vec<u8>> {
+    csv::WriterBuilder::new()
+        .flexible(true)
+        .from_writer(Vec::with_capacity(capacity))
+}
+
+/// Solve and write `rows` into one buffer; returns the bytes and the count of unsolved rows.
+fn write_rows(
+    rows: &[csv::StringRecord],
+    layout: &Layout,
+    methods: &MethodSet,
+) -> Result<(Vec<u8>, u64), String> {
+    let mut w = csv_writer(rows.len() * 256);
+    let mut fields = csv::ByteRecord::new();
+    let mut scratch = String::with_capacity(32);
+    let mut unsolved = 0;
+    for rec in rows {
+        if !process(rec, layout, methods, &mut fields, &mut scratch) {
+            unsolved += 1;
+        }
+        w.write_byte_record(&fields).map_err(|e| e.to_string())?;
     }
+    let bytes = w.into_inner().map_err(|e| e.error().to_string())?;
+    Ok((bytes, unsolved))
 }
 
 /// Counts of a finished run.
@@ -422,17 +450,27 @@ pub fn solve_stream<R: Read, W: Write>(
             header.iter().collect::<Vec<_>>().join(", ")
         ));
     }
-    let mut wtr = csv::WriterBuilder::new().flexible(true).from_writer(writer);
-    wtr.write_record(layout.output_header(&header))
+    let mut out = writer;
+    let mut head = csv_writer(256);
+    head.write_record(layout.output_header(&header))
         .map_err(|e| e.to_string())?;
+    let head = head.into_inner().map_err(|e| e.error().to_string())?;
+    out.write_all(&head).map_err(|e| e.to_string())?;
     let mut summary = SolveSummary::default();
-    let mut chunk: Vec<csv::StringRecord> = Vec::with_capacity(CHUNK_ROWS);
-    let mut records = rdr.records();
+    // Records are reused from chunk to chunk (no allocation per row once warm).
+    let mut chunk: Vec<csv::StringRecord> = Vec::new();
     loop {
-        chunk.clear();
-        for rec in records.by_ref().take(CHUNK_ROWS) {
-            match rec {
-                Ok(r) => chunk.push(r),
+        let mut filled = 0;
+        while filled < CHUNK_ROWS {
+            if filled == chunk.len() {
+                chunk.push(csv::StringRecord::new());
+            }
+            let Some(rec) = chunk.get_mut(filled) else {
+                break;
+            };
+            match rdr.read_record(rec) {
+                Ok(true) => filled += 1,
+                Ok(false) => break,
                 Err(e) => {
                     let line = e.position().map(|p| p.line()).unwrap_or(0);
                     if let csv::ErrorKind::Utf8 { err, .. } = e.kind() {
@@ -446,23 +484,22 @@ pub fn solve_stream<R: Read, W: Write>(
                 }
             }
         }
-        if chunk.is_empty() {
+        let rows = chunk.get(..filled).unwrap_or_default();
+        if rows.is_empty() {
             break;
         }
-        let outs: Vec<RowOut> = chunk
-            .par_iter()
-            .map(|r| process(r, &layout, methods))
+        let parts: Vec<Result<(Vec<u8>, u64), String>> = rows
+            .par_chunks(SUB_ROWS)
+            .map(|part| write_rows(part, &layout, methods))
             .collect();
-        for o in outs {
-            summary.rows += 1;
-            if !o.solved {
-                summary.unsolved += 1;
-            }
-            wtr.write_byte_record(&o.fields)
-                .map_err(|e| e.to_string())?;
+        for part in parts {
+            let (bytes, unsolved) = part?;
+            out.write_all(&bytes).map_err(|e| e.to_string())?;
+            summary.unsolved += unsolved;
         }
+        summary.rows += rows.len() as u64;
     }
-    wtr.flush().map_err(|e| e.to_string())?;
+    out.flush().map_err(|e| e.to_string())?;
     Ok(summary)
 }
 
