@@ -961,7 +961,7 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
                     omega_ca: st.map(|x| x.omega_ca),
                     measured,
                     flags,
-                    used: st.is_some(),
+                    used: s.is_used(),
                 }
             })
             .collect()
