@@ -14,6 +14,7 @@ pub mod chem;
 pub mod cli;
 pub mod diag;
 pub mod fsio;
+pub mod numfmt;
 pub mod outlook;
 pub mod report;
 pub mod site;

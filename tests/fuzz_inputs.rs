@@ -1133,18 +1133,9 @@ fn solve_bytes() -> impl Strategy<Value = Vec<u8>> {
     ]
 }
 
-fn ph_scale() -> impl Strategy<Value = PhScale> {
-    prop::sample::select(vec![
-        PhScale::Total,
-        PhScale::Seawater,
-        PhScale::Free,
-        PhScale::Nbs,
-    ])
-}
-
-fn check_solve_stream(input: &[u8], m: &MethodSet, scale: PhScale) -> Result<(), TestCaseError> {
+fn check_solve_stream(input: &[u8], m: &MethodSet) -> Result<(), TestCaseError> {
     let mut out = Vec::new();
-    match calcisite::cli::solve::solve_stream(input, &mut out, m, scale) {
+    match calcisite::cli::solve::solve_stream(input, &mut out, m) {
         Ok(summary) => {
             prop_assert!(summary.unsolved <= summary.rows);
             let mut rdr = csv::ReaderBuilder::new()
@@ -1169,13 +1160,10 @@ fn check_solve_stream(input: &[u8], m: &MethodSet, scale: PhScale) -> Result<(),
 
 #[test]
 fn fuzz_solve_stream() {
-    let strategy = (solve_bytes(), methods(), ph_scale());
-    fuzz(
-        "solve_stream",
-        cases(5000),
-        strategy,
-        |(input, m, scale)| check_solve_stream(&input, &m, scale),
-    );
+    let strategy = (solve_bytes(), methods());
+    fuzz("solve_stream", cases(5000), strategy, |(input, m)| {
+        check_solve_stream(&input, &m)
+    });
 }
 
 // ------------------------------------------------------------------------------- fixed inputs
@@ -1277,7 +1265,6 @@ fn edge_solve_stream_shapes() {
         &b"\xef\xbb\xbftemp_c,salinity,ta,dic\n25,35,2300,2000\n"[..],
         &mut out,
         &m,
-        PhScale::Total,
     );
     assert_eq!(r.map(|s| (s.rows, s.unsolved)), Ok((1, 0)));
     for input in [
@@ -1292,12 +1279,10 @@ fn edge_solve_stream_shapes() {
         b"\xef\xbb\xbftemp_c,salinity,ta,dic\n25,35,2300,2000\n",
         b"temp_c,salinity,ta,dic\n25,35,2300,\xff\n",
     ] {
-        for scale in [PhScale::Total, PhScale::Nbs] {
-            assert!(
-                check_solve_stream(input, &m, scale).is_ok(),
-                "{:?}",
-                String::from_utf8_lossy(input)
-            );
-        }
+        assert!(
+            check_solve_stream(input, &m).is_ok(),
+            "{:?}",
+            String::from_utf8_lossy(input)
+        );
     }
 }

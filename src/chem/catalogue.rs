@@ -349,7 +349,8 @@ fn edit_distance(a: &str, b: &str) -> usize {
 }
 
 /// The id a mistyped value most likely meant: one that starts with the value (a year left
-/// off, "uppstrom" → uppstrom1974) or is within a third of its length in edits (at least 2).
+/// off, "uppstrom" → uppstrom1974) or that, with or without its year, is within a third of
+/// the value's length in edits (at least 2; "upstrom" → uppstrom1974).
 fn suggest(value: &str, ids: &[&'static str]) -> Option<&'static str> {
     let low = value.to_ascii_lowercase();
     if low.len() >= 2
@@ -357,9 +358,20 @@ fn suggest(value: &str, ids: &[&'static str]) -> Option<&'static str> {
     {
         return Some(id);
     }
-    let limit = (low.chars().count() / 3).max(2);
+    let len = low.chars().count();
+    // At least two edits, but fewer than the value has characters ("x" suggests nothing).
+    let limit = (len / 3).max(2).min(len.saturating_sub(1));
     ids.iter()
-        .map(|id| (edit_distance(&low, id), *id))
+        .map(|id| {
+            let name = id.trim_end_matches(|c: char| c.is_ascii_digit());
+            let d = edit_distance(&low, id);
+            let d = if name.is_empty() {
+                d
+            } else {
+                d.min(edit_distance(&low, name))
+            };
+            (d, *id)
+        })
         .filter(|(d, _)| *d <= limit)
         .min_by_key(|(d, _)| *d)
         .map(|(_, id)| id)
@@ -390,6 +402,7 @@ mod tests {
     #[test]
     fn suggestions_catch_typos_and_nothing_else() {
         let k = MethodKind::CarbonicAcid;
+        let f = MethodKind::HydrogenFluoride;
         assert_eq!(
             k.parse("luecker2000").unwrap_err().suggestion,
             Some("lueker2000")
@@ -397,9 +410,15 @@ mod tests {
         assert_eq!(k.parse("wmw2041").unwrap_err().suggestion, Some("wmw2014"));
         assert_eq!(k.parse("dm78").unwrap_err().suggestion, Some("dm87"));
         assert_eq!(k.parse("zzzzzzzz").unwrap_err().suggestion, None);
-        let f = MethodKind::HydrogenFluoride;
+        assert_eq!(f.parse("x").unwrap_err().suggestion, None);
         assert_eq!(f.parse("dr").unwrap_err().suggestion, Some("dr79"));
         assert_eq!(f.parse("").unwrap_err().suggestion, None);
+        let b = MethodKind::TotalBoron;
+        assert_eq!(
+            b.parse("upstrom").unwrap_err().suggestion,
+            Some("uppstrom1974")
+        );
+        assert_eq!(b.parse("le2010").unwrap_err().suggestion, Some("lee2010"));
     }
 
     #[test]

@@ -99,6 +99,12 @@ mod tests {
 
     #[test]
     fn nonsense_is_an_error_not_a_panic() {
-        assert!(density_kg_m3(f64::NAN, 25.0, 0.0, 0.0, 0.0).is_err());
+        assert_eq!(
+            density_kg_m3(f64::NAN, 25.0, 0.0, 0.0, 0.0),
+            Err(
+                "TEOS-10 density undefined for salinity NaN, temperature 25 °C, pressure 0 dbar"
+                    .to_string()
+            )
+        );
     }
 }

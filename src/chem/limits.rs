@@ -61,7 +61,10 @@ mod tests {
         assert!(check("ta", 2300.0).is_ok());
         let e = check("ta", -5.0).unwrap_err();
         assert!(e.contains("ta") && e.contains("5000"), "{e}");
-        assert!(check("pco2", 0.0).is_err());
+        assert_eq!(
+            check("pco2", 0.0).unwrap_err(),
+            "pco2 = 0 µatm is outside the physical limit (above 0 to 20000 µatm)"
+        );
         assert!(check("silicate", 0.0).is_ok());
         assert!(check("ph_t", f64::NAN).unwrap_err().contains("finite"));
         assert!(check("unknown_column", 1e9).is_ok());

@@ -16,6 +16,7 @@ pub mod constants;
 pub mod density;
 pub mod gas;
 pub mod limits;
+pub mod measured;
 pub mod pressure;
 pub mod scales;
 mod solver;

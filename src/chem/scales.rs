@@ -118,6 +118,9 @@ mod tests {
             assert_eq!(name.parse::<PhScale>().unwrap(), sc);
             assert_eq!(sc.to_string(), name);
         }
-        assert!("ph".parse::<PhScale>().is_err());
+        assert_eq!(
+            "ph".parse::<PhScale>().unwrap_err(),
+            "unknown pH scale 'ph' (expected one of: total, sws, free, nbs)"
+        );
     }
 }

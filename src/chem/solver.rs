@@ -460,11 +460,23 @@ mod tests {
             solve(Input::Ta(f64::NAN), Input::Dic(2000.0), &c, &m),
             Err(ChemError::OutOfRange(_))
         ));
+        let message = |a, b| match solve(a, b, &c, &m) {
+            Err(e) => e.to_string(),
+            Ok(st) => format!("solved: {st:?}"),
+        };
         // Alkalinity far above twice DIC: no state in the seawater range.
-        assert!(solve(Input::Ta(4900.0), Input::Dic(100.0), &c, &m).is_err());
-        // pH so low that no positive DIC matches this TA.
-        assert!(solve(Input::Ta(10.0), Input::PhT(9.4), &c, &m).is_err());
-        // pCO2 so high that dissolved CO2 alone would exceed DIC.
-        assert!(solve(Input::Dic(500.0), Input::Pco2(19000.0), &c, &m).is_err());
+        let e = message(Input::Ta(4900.0), Input::Dic(100.0));
+        assert!(e.starts_with("these inputs imply pH_T 10."), "{e}");
+        assert!(e.contains("outside the seawater range 6–9.5"), "{e}");
+        // At pH 9.4 borate and hydroxide alone exceed a TA of 10 µmol/kg: no DIC matches.
+        assert_eq!(
+            message(Input::Ta(10.0), Input::PhT(9.4)),
+            "TA is too low for this pH: no DIC can match (carbonate alkalinity ≤ 0)"
+        );
+        // 19000 µatm × K0 (≈0.028 mol/kg/atm) ≈ 540 µmol/kg of CO2*, above this DIC.
+        assert_eq!(
+            message(Input::Dic(500.0), Input::Pco2(19000.0)),
+            "DIC must exceed dissolved CO2 (K0·fCO2); this pCO2 is too high for this DIC"
+        );
     }
 }

@@ -1,9 +1,10 @@
 //! `calcisite solve`: the carbonate system for every row of a CSV file.
 //!
-//! The file contract (column names, order, the `problem` column, exit status) is fixed in
-//! `DEVELOPERS.md` and the README. Rows are read and written in chunks; each chunk is
-//! solved in parallel and written back in input order, so memory stays constant however
-//! long the file is.
+//! The file contract (column names, order, the `problem` and `pair_used` columns, exit
+//! status) is fixed in the README's "solve file contract". Rows are read and written in
+//! chunks; each chunk is solved in parallel and written back in input order, so memory stays
+//! constant however long the file is. Each row goes through the one measured-pair solver,
+//! [`crate::chem::measured`]; numbers are written by [`crate::numfmt`].
 
 use std::fs::File;
 use std::io::{self, BufReader, Read, Write};
@@ -12,13 +13,13 @@ use std::path::{Path, PathBuf};
 use clap::Args;
 use rayon::prelude::*;
 
+use crate::chem::catalogue::MethodKind;
+use crate::chem::measured::{self, MeasuredError, MeasuredParams, Options, Pair, Param};
 use crate::chem::scales::{self, PhScale};
 use crate::chem::{
-    BoronTotal, CarbonateState, Conditions, Constants, Input, K1K2, KfSource, MethodSet, limits,
-    solve_pair,
+    BoronTotal, CarbonateState, Conditions, Constants, K1K2, KfSource, MethodSet, limits,
 };
-use crate::fsio;
-use crate::site::records::{TOL_CO2_FRACTION, TOL_PH, TOL_TA_DIC_UMOL_KG};
+use crate::{fsio, numfmt};
 
 /// Exit status when every row was solved.
 pub const EXIT_OK: i32 = 0;
@@ -27,92 +28,60 @@ pub const EXIT_OK: i32 = 0;
 /// does not grow with the file.
 const CHUNK_ROWS: usize = 16_384;
 
-/// Input parameters in the order of preference used when a row gives more than two: the
-/// pair that constrains the system best (Dickson et al. 2007, chapter 1; TA + DIC is the
-/// usual choice, the pH + CO2 pair the worst conditioned) solves, the rest are checked.
-const PREFERRED_PAIRS: &[(&str, &str)] = &[
-    ("ta", "dic"),
-    ("ta", "ph_t"),
-    ("dic", "ph_t"),
-    ("ta", "pco2"),
-    ("ta", "fco2"),
-    ("dic", "pco2"),
-    ("dic", "fco2"),
-    ("ta", "co3"),
-    ("dic", "co3"),
-    ("ph_t", "co3"),
-    ("pco2", "co3"),
-    ("fco2", "co3"),
-    ("ph_t", "pco2"),
-    ("ph_t", "fco2"),
-];
-
-/// Measured-minus-calculated tolerances for the consistency check of over-determined rows:
-/// the same limits `check` applies to record files (see `site::records::TOL_*` for their
-/// basis), so that both commands judge a sample alike. CO3 shares the relative CO2 limit.
-const CONSISTENCY: &[(&str, f64, bool)] = &[
-    ("ta", TOL_TA_DIC_UMOL_KG, false),
-    ("dic", TOL_TA_DIC_UMOL_KG, false),
-    ("ph_t", TOL_PH, false),
-    ("pco2", TOL_CO2_FRACTION, true),
-    ("fco2", TOL_CO2_FRACTION, true),
-    ("co3", TOL_CO2_FRACTION, true),
-];
-
-/// Output columns appended (or filled in place), in contract order.
-pub const OUTPUT_COLUMNS: [&str; 12] = [
-    "ta", "dic", "ph_t", "pco2", "fco2", "hco3", "co3", "co2aq", "omega_ar", "omega_ca", "revelle",
+/// Output columns appended (or filled in place), in contract order: the species in
+/// speciation order (CO2*, HCO3⁻, CO3²⁻).
+pub const OUTPUT_COLUMNS: [&str; 13] = [
+    "ta",
+    "dic",
+    "ph_t",
+    "pco2",
+    "fco2",
+    "co2aq",
+    "hco3",
+    "co3",
+    "omega_ar",
+    "omega_ca",
+    "revelle",
     "problem",
+    "pair_used",
+];
+
+/// Input pH columns: the name gives the scale.
+pub const PH_COLUMNS: [(&str, PhScale); 4] = [
+    ("ph_t", PhScale::Total),
+    ("ph_sws", PhScale::Seawater),
+    ("ph_free", PhScale::Free),
+    ("ph_nbs", PhScale::Nbs),
 ];
 
 #[derive(Args, Debug)]
 #[command(after_help = "Examples:
   calcisite solve demo-data/lagoon-bottles-solve.csv -o solved.csv
   cat samples.csv | calcisite solve - > solved.csv
-  calcisite solve legacy.csv --ph-scale nbs --k1k2 dm87 -o solved.csv
+  calcisite solve legacy.csv --carbonic-acid dm87 -o solved.csv
 
 Recognised columns: date, station, temp_c, salinity, depth_m or pressure_dbar, ta, dic,
-ph_t, pco2, fco2, co3, silicate, phosphate (µmol/kg, µatm, °C). Each row needs exactly two
-of ta, dic, ph_t, pco2/fco2, co3; a third is checked against the solution. Other columns
-pass through unchanged. Exit status 0 when every row was solved, 3 when any row could not
-be (every row is still written, with the reason in `problem`).")]
+one pH column (ph_t, ph_sws, ph_free or ph_nbs: the name gives the scale), pco2, fco2, co3,
+silicate, phosphate (µmol/kg, µatm, °C). Each row needs two of ta, dic, pH, pco2/fco2, co3;
+further ones are checked against the solution. Other columns pass through unchanged. Output
+pH is on the total scale (column ph_t). Exit status 0 when every row was solved, 3 when any
+row could not be (every row is still written, with the reason in `problem`).")]
 pub struct SolveArgs {
     /// Input CSV file, or `-` for standard input.
     pub input: PathBuf,
     /// Output CSV file (written atomically), or `-` for standard output (the default).
     #[arg(short, long, default_value = "-")]
     pub output: PathBuf,
-    /// K1/K2 constant set: lueker2000 (default), millero2010, wmw2014, sulpis2020, dm87.
-    #[arg(long, default_value = "lueker2000")]
-    pub k1k2: K1K2Arg,
-    /// Total boron: lee2010 (default) or uppstrom1974.
-    #[arg(long, default_value = "lee2010")]
-    pub boron: BoronArg,
-    /// Hydrogen fluoride constant: pf87 (default) or dr79.
-    #[arg(long, default_value = "pf87")]
-    pub kf: KfArg,
-    /// pH scale of the input `ph_t` column: total (default), sws, free or nbs. Output pH is
-    /// always on the total scale and replaces the input value in the `ph_t` column.
-    #[arg(long, default_value = "total")]
-    pub ph_scale: PhScaleArg,
+    #[arg(long = "carbonic-acid", value_name = "ID", default_value_t = K1K2::default(),
+          help = MethodKind::CarbonicAcid.help())]
+    pub carbonic_acid: K1K2,
+    #[arg(long = "total-boron", value_name = "ID", default_value_t = BoronTotal::default(),
+          help = MethodKind::TotalBoron.help())]
+    pub total_boron: BoronTotal,
+    #[arg(long = "hydrogen-fluoride", value_name = "ID", default_value_t = KfSource::default(),
+          help = MethodKind::HydrogenFluoride.help())]
+    pub hydrogen_fluoride: KfSource,
 }
-
-macro_rules! parse_arg {
-    ($name:ident, $inner:ty) => {
-        #[derive(Clone, Copy, Debug)]
-        pub struct $name(pub $inner);
-        impl std::str::FromStr for $name {
-            type Err = String;
-            fn from_str(s: &str) -> Result<Self, String> {
-                s.parse::<$inner>().map($name).map_err(|e| e.to_string())
-            }
-        }
-    };
-}
-parse_arg!(K1K2Arg, K1K2);
-parse_arg!(BoronArg, BoronTotal);
-parse_arg!(KfArg, KfSource);
-parse_arg!(PhScaleArg, PhScale);
 
 /// Where each recognised column sits in the header.
 #[derive(Default, Debug)]
@@ -123,27 +92,48 @@ struct Layout {
     pressure_dbar: Option<usize>,
     silicate: Option<usize>,
     phosphate: Option<usize>,
-    /// Carbonate inputs present in the header: (column name, index).
-    carbonate: Vec<(&'static str, usize)>,
+    /// Carbonate inputs present in the header: (parameter, column name, index).
+    carbonate: Vec<(Param, &'static str, usize)>,
+    /// The scale of the pH column, if there is one.
+    ph_scale: PhScale,
     /// For each output column: the input index it fills in place, if any.
     outputs: Vec<Option<usize>>,
     input_width: usize,
 }
 
 impl Layout {
-    fn from_header(header: &csv::StringRecord) -> Layout {
+    fn from_header(header: &csv::StringRecord) -> Result<Layout, String> {
         let find = |name: &str| {
             header
                 .iter()
                 .position(|h| h.trim().eq_ignore_ascii_case(name))
         };
+        let ph: Vec<(&'static str, PhScale, usize)> = PH_COLUMNS
+            .iter()
+            .filter_map(|&(name, scale)| find(name).map(|i| (name, scale, i)))
+            .collect();
+        if ph.len() > 1 {
+            let names: Vec<&str> = ph.iter().map(|p| p.0).collect();
+            return Err(format!(
+                "the header has {} pH columns ({}); keep exactly one, named for its scale: \
+                 ph_t (total), ph_sws (seawater), ph_free or ph_nbs",
+                ph.len(),
+                names.join(", ")
+            ));
+        }
         let mut carbonate = Vec::new();
-        for name in ["ta", "dic", "ph_t", "pco2", "fco2", "co3"] {
-            if let Some(i) = find(name) {
-                carbonate.push((name, i));
+        let mut ph_scale = PhScale::Total;
+        for p in Param::ALL {
+            if p == Param::PhT {
+                if let Some(&(name, scale, i)) = ph.first() {
+                    carbonate.push((p, name, i));
+                    ph_scale = scale;
+                }
+            } else if let Some(i) = find(p.column()) {
+                carbonate.push((p, p.column(), i));
             }
         }
-        Layout {
+        Ok(Layout {
             temp_c: find("temp_c"),
             salinity: find("salinity"),
             depth_m: find("depth_m"),
@@ -151,9 +141,10 @@ impl Layout {
             silicate: find("silicate"),
             phosphate: find("phosphate"),
             carbonate,
+            ph_scale,
             outputs: OUTPUT_COLUMNS.iter().map(|c| find(c)).collect(),
             input_width: header.len(),
-        }
+        })
     }
 
     fn output_header(&self, header: &csv::StringRecord) -> Vec<String> {
@@ -172,6 +163,12 @@ struct RowOut {
     /// All output fields in one buffer (one allocation per row).
     fields: csv::ByteRecord,
     solved: bool,
+}
+
+/// What solving one row gave: the state and pair when solved, and the `problem` notes.
+struct RowResult {
+    solved: Option<(CarbonateState, Pair)>,
+    notes: Vec<String>,
 }
 
 fn cell(rec: &csv::StringRecord, idx: Option<usize>) -> Option<&str> {
@@ -196,17 +193,6 @@ fn number(
     }
 }
 
-fn make_input(name: &str, v: f64) -> Input {
-    match name {
-        "ta" => Input::Ta(v),
-        "dic" => Input::Dic(v),
-        "ph_t" => Input::PhT(v),
-        "pco2" => Input::Pco2(v),
-        "fco2" => Input::Fco2(v),
-        _ => Input::Co3(v),
-    }
-}
-
 fn state_value(st: &CarbonateState, name: &str) -> f64 {
     match name {
         "ta" => st.ta,
@@ -225,7 +211,7 @@ fn state_value(st: &CarbonateState, name: &str) -> f64 {
 
 /// Decimals written per output quantity (fixed, so that output bytes never depend on float
 /// printing).
-fn decimals_of(name: &str) -> u32 {
+fn decimals_of(name: &str) -> usize {
     match name {
         "ph_t" => 6,
         "omega_ar" | "omega_ca" => 5,
@@ -233,64 +219,74 @@ fn decimals_of(name: &str) -> u32 {
     }
 }
 
-/// The text of one output value.
-#[cfg(test)]
-fn format_value(name: &str, v: f64) -> String {
-    let mut s = String::new();
-    push_fixed(&mut s, v, decimals_of(name));
-    s
+fn fixed(v: f64, decimals: usize) -> String {
+    numfmt::fixed(v, decimals).unwrap_or_default()
 }
 
-/// Append `v` with exactly `decimals` decimals, rounded half away from zero at
-/// `v·10^decimals`. Many times faster than `format!("{v:.4}")`, whose exact decimal
-/// expansion dominated the run time of `solve` on large files. Values too large for the
-/// integer path (never the case for the quantities written here) fall back to `format!`.
-fn push_fixed(buf: &mut String, v: f64, decimals: u32) {
-    let decimals = decimals.min(9);
-    let scaled = (v * 10f64.powi(decimals as i32)).round();
-    if !scaled.is_finite() || scaled.abs() >= 9.0e15 {
-        buf.push_str(&format!("{v:.prec$}", prec = decimals as usize));
-        return;
+/// The conditions of one row, checked against the physical limits.
+fn conditions(rec: &csv::StringRecord, layout: &Layout) -> Result<Conditions, String> {
+    let parse = |idx, col: &str| number(rec, idx, col);
+    let temp_c = parse(layout.temp_c, "temp_c")?;
+    let salinity = parse(layout.salinity, "salinity")?;
+    let (Some(temp_c), Some(salinity)) = (temp_c, salinity) else {
+        let missing = if temp_c.is_none() {
+            "temp_c"
+        } else {
+            "salinity"
+        };
+        return Err(format!("{missing} is missing"));
+    };
+    let pressure = match (
+        parse(layout.pressure_dbar, "pressure_dbar")?,
+        parse(layout.depth_m, "depth_m")?,
+    ) {
+        (Some(p), _) => ("pressure_dbar", p),
+        // A depth in metres is taken as that many decibars (within 1 % at reef depths).
+        (None, Some(d)) => ("depth_m", d),
+        (None, None) => ("pressure_dbar", 0.0),
+    };
+    let silicate = parse(layout.silicate, "silicate")?.unwrap_or(0.0);
+    let phosphate = parse(layout.phosphate, "phosphate")?.unwrap_or(0.0);
+    for (col, v) in [
+        ("temp_c", temp_c),
+        ("salinity", salinity),
+        (pressure.0, pressure.1),
+        ("silicate", silicate),
+        ("phosphate", phosphate),
+    ] {
+        limits::check(col, v)?;
     }
-    let n = scaled as i64;
-    if n < 0 {
-        buf.push('-');
-    }
-    let unit = 10u64.pow(decimals);
-    let m = n.unsigned_abs();
-    push_digits(buf, m / unit, 1);
-    if decimals > 0 {
-        buf.push('.');
-        push_digits(buf, m % unit, decimals as usize);
-    }
+    Ok(Conditions {
+        temp_c,
+        salinity,
+        pressure_dbar: pressure.1,
+        silicate,
+        phosphate,
+    })
 }
 
-/// Append the decimal digits of `x`, left-padded with zeros to at least `width`.
-fn push_digits(buf: &mut String, mut x: u64, width: usize) {
-    let mut digits = [b'0'; 20];
-    let mut len = 0;
-    while x > 0 || len < width {
-        if let Some(d) = digits.get_mut(len) {
-            *d = b'0' + (x % 10) as u8;
-        }
-        x /= 10;
-        len += 1;
-        if len >= digits.len() {
-            break;
-        }
-    }
-    for &d in digits.iter().take(len).rev() {
-        buf.push(char::from(d));
-    }
+/// The `problem` note of a measured parameter that disagrees with the solved state.
+fn misfit_note(m: &measured::Misfit, pair: Pair) -> String {
+    let name = m.param.column();
+    let (shown, tol) = if m.tolerance.relative {
+        (
+            format!("{} %", fixed(m.difference * 100.0, 1)),
+            format!("{} %", fixed(m.tolerance.limit * 100.0, 0)),
+        )
+    } else {
+        (fixed(m.difference, 4), format!("{}", m.tolerance.limit))
+    };
+    format!(
+        "warning: measured {name} {} differs from the value calculated from {} + {} ({}) by {shown} (tolerance {tol})",
+        m.measured,
+        pair.0.column(),
+        pair.1.column(),
+        fixed(m.calculated, decimals_of(name))
+    )
 }
 
 /// Solve one row; never panics.
-fn solve_row(
-    rec: &csv::StringRecord,
-    layout: &Layout,
-    methods: &MethodSet,
-    ph_scale: PhScale,
-) -> (Option<CarbonateState>, Vec<String>, bool) {
+fn solve_row(rec: &csv::StringRecord, layout: &Layout, methods: &MethodSet) -> RowResult {
     let mut notes = Vec::new();
     if rec.len() != layout.input_width {
         notes.push(format!(
@@ -301,166 +297,69 @@ fn solve_row(
     }
     let fail = |mut notes: Vec<String>, msg: String| {
         notes.push(format!("error: {msg}"));
-        (None, notes, false)
-    };
-    let parse = |idx, col: &str| number(rec, idx, col);
-    let (temp_c, salinity) = match (
-        parse(layout.temp_c, "temp_c"),
-        parse(layout.salinity, "salinity"),
-    ) {
-        (Ok(Some(t)), Ok(Some(s))) => (t, s),
-        (Err(e), _) | (_, Err(e)) => return fail(notes, e),
-        (Ok(None), _) => return fail(notes, "temp_c is missing".into()),
-        (_, Ok(None)) => return fail(notes, "salinity is missing".into()),
-    };
-    let pressure = match (
-        parse(layout.pressure_dbar, "pressure_dbar"),
-        parse(layout.depth_m, "depth_m"),
-    ) {
-        (Err(e), _) | (_, Err(e)) => return fail(notes, e),
-        (Ok(Some(p)), _) => ("pressure_dbar", p),
-        // A depth in metres is taken as that many decibars (within 1 % at reef depths).
-        (Ok(None), Ok(Some(d))) => ("depth_m", d),
-        (Ok(None), Ok(None)) => ("pressure_dbar", 0.0),
-    };
-    let silicate = match parse(layout.silicate, "silicate") {
-        Ok(v) => v.unwrap_or(0.0),
-        Err(e) => return fail(notes, e),
-    };
-    let phosphate = match parse(layout.phosphate, "phosphate") {
-        Ok(v) => v.unwrap_or(0.0),
-        Err(e) => return fail(notes, e),
-    };
-    for (col, v) in [
-        ("temp_c", temp_c),
-        ("salinity", salinity),
-        (pressure.0, pressure.1),
-        ("silicate", silicate),
-        ("phosphate", phosphate),
-    ] {
-        if let Err(e) = limits::check(col, v) {
-            return fail(notes, e);
+        RowResult {
+            solved: None,
+            notes,
         }
-    }
-    let cond = Conditions {
-        temp_c,
-        salinity,
-        pressure_dbar: pressure.1,
-        silicate,
-        phosphate,
+    };
+    let cond = match conditions(rec, layout) {
+        Ok(c) => c,
+        Err(e) => return fail(notes, e),
     };
     let k = Constants::new(&cond, methods);
-
-    let mut given: Vec<(&'static str, f64)> = Vec::new();
-    for &(name, idx) in &layout.carbonate {
+    let mut given = MeasuredParams::default();
+    for &(param, name, idx) in &layout.carbonate {
         match number(rec, Some(idx), name) {
-            Ok(Some(mut v)) => {
-                if name == "ph_t" && ph_scale != PhScale::Total {
-                    v = scales::to_total(v, ph_scale, &k);
-                }
-                given.push((name, v));
+            Ok(Some(v)) if param == Param::PhT && layout.ph_scale != PhScale::Total => {
+                given.set(param, Some(scales::to_total(v, layout.ph_scale, &k)));
             }
-            Ok(None) => {}
+            Ok(v) => given.set(param, v),
             Err(e) => return fail(notes, e),
         }
     }
-    let has = |n: &str| given.iter().any(|(g, _)| *g == n);
-    if has("pco2") && has("fco2") && given.len() == 2 {
-        return fail(notes, "pco2 with fco2 is not a valid pair: they carry the same information; give one of them with ta, dic, ph_t or co3".into());
-    }
-    if given.len() < 2 {
-        let names: Vec<&str> = given.iter().map(|(n, _)| *n).collect();
-        return fail(
-            notes,
-            format!(
-                "two of ta, dic, ph_t, pco2/fco2, co3 are needed, this row gives {}",
-                if names.is_empty() {
-                    "none".to_string()
-                } else {
-                    format!("{} only", names.join(", "))
-                }
-            ),
-        );
-    }
-    let value = |n: &str| given.iter().find(|(g, _)| *g == n).map(|(_, v)| *v);
-    let Some(&(a, b)) = PREFERRED_PAIRS.iter().find(|(a, b)| has(a) && has(b)) else {
-        return fail(notes, "no valid pair among the given parameters".into());
-    };
-    let (Some(va), Some(vb)) = (value(a), value(b)) else {
-        return fail(notes, "no valid pair among the given parameters".into());
-    };
-    let state = match solve_pair(make_input(a, va), make_input(b, vb), &k) {
-        Ok(st) => st,
-        Err(e) => return fail(notes, e.to_string()),
+    let sol = match measured::solve_measured(&given, &k, &Options::default()) {
+        Ok(s) => s,
+        Err(e @ MeasuredError::NoPair { .. }) => return fail(notes, e.to_string()),
+        Err(MeasuredError::Solve { error, .. }) => return fail(notes, error.to_string()),
     };
     for w in methods.range_warnings(&cond) {
         notes.push(format!("warning: {w}"));
     }
-    if given.len() > 2 {
-        notes.push(format!("note: solved from {a} + {b}"));
+    for m in sol.inconsistent() {
+        notes.push(misfit_note(m, sol.pair));
     }
-    for (name, measured) in &given {
-        if *name == a || *name == b {
-            continue;
-        }
-        let calc = state_value(&state, name);
-        if let Some(&(_, tol, relative)) = CONSISTENCY.iter().find(|(n, ..)| n == name) {
-            let diff = if relative {
-                (measured - calc) / calc
-            } else {
-                measured - calc
-            };
-            if diff.abs() > tol {
-                let shown = if relative {
-                    format!("{:.1} %", diff * 100.0)
-                } else {
-                    format!("{diff:.4}")
-                };
-                let tol_s = if relative {
-                    format!("{:.0} %", tol * 100.0)
-                } else {
-                    format!("{tol}")
-                };
-                notes.push(format!(
-                    "warning: measured {name} {measured} differs from the value calculated from {a} + {b} ({}) by {shown} (tolerance {tol_s})",
-                    {
-                        let mut t = String::new();
-                        push_fixed(&mut t, calc, decimals_of(name));
-                        t
-                    }
-                ));
-            }
-        }
+    RowResult {
+        solved: Some((sol.state, sol.pair)),
+        notes,
     }
-    (Some(state), notes, true)
 }
 
-fn process(
-    rec: &csv::StringRecord,
-    layout: &Layout,
-    methods: &MethodSet,
-    ph_scale: PhScale,
-) -> RowOut {
-    let (state, notes, solved) = solve_row(rec, layout, methods, ph_scale);
-    // The text of output column `k`, or None for an unsolved value (an in-place column then
-    // keeps the input's text).
+fn process(rec: &csv::StringRecord, layout: &Layout, methods: &MethodSet) -> RowOut {
+    let RowResult { solved, notes } = solve_row(rec, layout, methods);
+    // The text of output column `k`, or false for an unsolved value (an in-place column then
+    // keeps the input's text). `problem` and `pair_used` are always written.
     let mut scratch = String::with_capacity(16);
     let text = |k: usize, buf: &mut String| -> bool {
         buf.clear();
         let name = OUTPUT_COLUMNS.get(k).copied().unwrap_or("problem");
-        if name == "problem" {
-            for (i, n) in notes.iter().enumerate() {
-                if i > 0 {
-                    buf.push_str("; ");
+        match (name, &solved) {
+            ("problem", _) => {
+                for (i, n) in notes.iter().enumerate() {
+                    if i > 0 {
+                        buf.push_str("; ");
+                    }
+                    buf.push_str(n);
                 }
-                buf.push_str(n);
+                true
             }
-            true
-        } else if let Some(st) = &state {
-            push_fixed(buf, state_value(st, name), decimals_of(name));
-            true
-        } else {
-            false
+            ("pair_used", Some((_, pair))) => {
+                use std::fmt::Write as _;
+                let _ = write!(buf, "{pair}");
+                true
+            }
+            ("pair_used", None) => true,
+            (_, Some((st, _))) => numfmt::push_fixed(buf, state_value(st, name), decimals_of(name)),
+            (_, None) => false,
         }
     };
     let mut fields = csv::ByteRecord::with_capacity(
@@ -483,7 +382,10 @@ fn process(
             }
         }
     }
-    RowOut { fields, solved }
+    RowOut {
+        fields,
+        solved: solved.is_some(),
+    }
 }
 
 /// Counts of a finished run.
@@ -498,7 +400,6 @@ pub fn solve_stream<R: Read, W: Write>(
     reader: R,
     writer: W,
     methods: &MethodSet,
-    ph_scale: PhScale,
 ) -> Result<SolveSummary, String> {
     let mut rdr = csv::ReaderBuilder::new().flexible(true).from_reader(reader);
     let header = rdr
@@ -508,7 +409,7 @@ pub fn solve_stream<R: Read, W: Write>(
     if header.iter().all(|h| h.trim().is_empty()) {
         return Err("the file has no header row".into());
     }
-    let layout = Layout::from_header(&header);
+    let layout = Layout::from_header(&header)?;
     if layout.temp_c.is_none() || layout.salinity.is_none() {
         if header.iter().all(|h| h.trim().parse::<f64>().is_ok()) {
             return Err(format!(
@@ -550,7 +451,7 @@ pub fn solve_stream<R: Read, W: Write>(
         }
         let outs: Vec<RowOut> = chunk
             .par_iter()
-            .map(|r| process(r, &layout, methods, ph_scale))
+            .map(|r| process(r, &layout, methods))
             .collect();
         for o in outs {
             summary.rows += 1;
@@ -568,11 +469,10 @@ pub fn solve_stream<R: Read, W: Write>(
 /// Run the command; returns the process exit status.
 pub fn run(args: &SolveArgs) -> Result<SolveSummary, String> {
     let methods = MethodSet {
-        k1k2: args.k1k2.0,
-        boron: args.boron.0,
-        kf: args.kf.0,
+        k1k2: args.carbonic_acid,
+        boron: args.total_boron,
+        kf: args.hydrogen_fluoride,
     };
-    let ph_scale = args.ph_scale.0;
     let from_stdin = args.input.as_os_str() == "-";
     let to_stdout = args.output.as_os_str() == "-";
     if !from_stdin
@@ -606,11 +506,11 @@ pub fn run(args: &SolveArgs) -> Result<SolveSummary, String> {
     };
     if to_stdout {
         let out = io::stdout().lock();
-        solve_stream(reader, io::BufWriter::new(out), &methods, ph_scale).map_err(label)
+        solve_stream(reader, io::BufWriter::new(out), &methods).map_err(label)
     } else {
         let mut result = Err(String::new());
         let written = fsio::write_atomic(Path::new(&args.output), |w| {
-            match solve_stream(reader, w, &methods, ph_scale) {
+            match solve_stream(reader, w, &methods) {
                 Ok(s) => {
                     result = Ok(s);
                     Ok(())
@@ -634,16 +534,25 @@ pub fn run(args: &SolveArgs) -> Result<SolveSummary, String> {
 mod tests {
     use super::*;
 
-    fn run_str(input: &str) -> (String, SolveSummary) {
+    fn run_with(input: &str, m: &MethodSet) -> Result<(String, SolveSummary), String> {
         let mut out = Vec::new();
-        let s = solve_stream(
-            input.as_bytes(),
-            &mut out,
-            &MethodSet::default(),
-            PhScale::Total,
-        )
-        .unwrap();
-        (String::from_utf8(out).unwrap(), s)
+        let s = solve_stream(input.as_bytes(), &mut out, m)?;
+        Ok((String::from_utf8(out).map_err(|e| e.to_string())?, s))
+    }
+
+    fn run_str(input: &str) -> (String, SolveSummary) {
+        run_with(input, &MethodSet::default()).unwrap()
+    }
+
+    /// Field `name` of data line `row` (1-based) of a solve output.
+    fn field(out: &str, row: usize, name: &str) -> String {
+        let mut rdr = csv::ReaderBuilder::new()
+            .flexible(true)
+            .from_reader(out.as_bytes());
+        let header = rdr.headers().unwrap().clone();
+        let i = header.iter().position(|h| h == name).unwrap();
+        let rec = rdr.records().nth(row - 1).unwrap().unwrap();
+        rec.get(i).unwrap().to_string()
     }
 
     #[test]
@@ -652,16 +561,23 @@ mod tests {
         let mut lines = out.lines();
         assert_eq!(
             lines.next().unwrap(),
-            "station,temp_c,salinity,ta,dic,note,ph_t,pco2,fco2,hco3,co3,co2aq,omega_ar,omega_ca,revelle,problem"
+            "station,temp_c,salinity,ta,dic,note,ph_t,pco2,fco2,co2aq,hco3,co3,omega_ar,omega_ca,revelle,problem,pair_used"
         );
         let row = lines.next().unwrap();
-        // PyCO2SYS 1.8.3.4, default set (fact sheet §7g): pH_T 8.040225, Omega_ar 3.346727.
+        // PyCO2SYS 1.8.3.4, default set (fact sheet §7g): pH_T 8.040225, pCO2 402.693,
+        // CO2* 11.3967, HCO3 1777.679, CO3 210.925, Omega_ar 3.346727.
         assert!(
             row.starts_with("A,25,35,2300.0000,2000.0000,x,8.040225,402.69"),
             "{row}"
         );
+        assert!(row.contains(",11.39"), "{row}");
+        assert!(row.contains(",1777.6"), "{row}");
+        assert!(row.contains(",210.9"), "{row}");
         assert!(row.contains(",3.34673,"), "{row}");
-        assert!(row.ends_with(','), "problem column should be empty: {row}");
+        assert!(
+            row.ends_with(",,ta+dic"),
+            "problem empty, pair named: {row}"
+        );
         assert_eq!(
             s,
             SolveSummary {
@@ -681,25 +597,31 @@ mod tests {
                      25,60,2300,2000,,\n\
                      25,35,2300,2000,,\n";
         let (out, s) = run_str(input);
-        let lines: Vec<&str> = out.lines().collect();
-        assert_eq!(lines.len(), 7, "every row is written");
+        assert_eq!(out.lines().count(), 7, "every row is written");
+        let problem = |row| field(&out, row, "problem");
+        assert_eq!(problem(1), "error: ta: 'abc' is not a number");
         assert!(
-            lines[1].contains("ta: 'abc' is not a number"),
+            problem(2).starts_with("error: pco2 with fco2 is not a valid pair"),
             "{}",
-            lines[1]
+            problem(2)
         );
-        assert!(
-            lines[2].contains("pco2 with fco2 is not a valid pair"),
-            "{}",
-            lines[2]
+        assert_eq!(
+            problem(3),
+            "error: two of ta, dic, ph_t, pco2/fco2, co3 are needed, this row gives ta only"
         );
-        assert!(lines[3].contains("this row gives ta only"), "{}", lines[3]);
-        assert!(
-            lines[4].contains("ta = -5") && lines[4].contains("physical limit"),
-            "{}",
-            lines[4]
+        assert_eq!(
+            problem(4),
+            "error: ta = -5 µmol/kg is outside the physical limit (above 0 to 5000 µmol/kg)"
         );
-        assert!(lines[5].contains("salinity = 60"), "{}", lines[5]);
+        assert_eq!(
+            problem(5),
+            "error: salinity = 60 is outside the physical limit (from 0 to 50)"
+        );
+        assert_eq!(problem(6), "");
+        for row in 1..=5 {
+            assert_eq!(field(&out, row, "pair_used"), "", "row {row}");
+        }
+        assert_eq!(field(&out, 6, "pair_used"), "ta+dic");
         assert_eq!(
             s,
             SolveSummary {
@@ -711,57 +633,84 @@ mod tests {
 
     #[test]
     fn over_determined_rows_are_checked() {
-        // pCO2 402.69 is what TA 2300 / DIC 2000 give; 500 is not.
+        // pCO2 402.69 is what TA 2300 / DIC 2000 give (PyCO2SYS, fact sheet §7g); 500 is
+        // 24 % above it, beyond the 5 % tolerance.
         let (out, _) =
             run_str("temp_c,salinity,ta,dic,pco2\n25,35,2300,2000,402.7\n25,35,2300,2000,500\n");
-        let lines: Vec<&str> = out.lines().collect();
-        assert!(lines[1].contains("note: solved from ta + dic") && !lines[1].contains("warning"));
-        assert!(
-            lines[2].contains("warning: measured pco2 500"),
-            "{}",
-            lines[2]
+        assert_eq!(field(&out, 1, "problem"), "");
+        assert_eq!(field(&out, 1, "pair_used"), "ta+dic");
+        assert_eq!(
+            field(&out, 2, "problem"),
+            "warning: measured pco2 500 differs from the value calculated from ta + dic \
+             (402.6930) by 24.2 % (tolerance 5 %)"
         );
+        assert_eq!(field(&out, 2, "pair_used"), "ta+dic");
     }
 
-    fn fixed(v: f64, d: u32) -> String {
-        let mut s = String::new();
-        push_fixed(&mut s, v, d);
-        s
+    /// The pH column's name gives its scale. PyCO2SYS 1.8.3.4 (fact sheet §7g, and the
+    /// scale cross-check in `chem::scales`): pH_T 8.040225 is pH_NBS 8.176768 at S 35,
+    /// 25 °C, with TA 2300 µmol/kg.
+    #[test]
+    fn ph_scale_comes_from_the_column_name() {
+        let (out, _) = run_str("temp_c,salinity,ta,ph_nbs\n25,35,2300,8.176768\n");
+        assert!(
+            out.starts_with("temp_c,salinity,ta,ph_nbs,dic,ph_t,"),
+            "{out}"
+        );
+        assert_eq!(field(&out, 1, "ph_nbs"), "8.176768", "input kept");
+        let ph_t: f64 = field(&out, 1, "ph_t").parse().unwrap();
+        assert!((ph_t - 8.040225).abs() < 3e-6, "{ph_t}");
+        assert_eq!(field(&out, 1, "pair_used"), "ta+ph_t");
     }
 
     #[test]
-    fn fixed_decimals_matches_rounding() {
-        assert_eq!(fixed(8.0402251, 6), "8.040225");
-        assert_eq!(fixed(2300.0, 4), "2300.0000");
-        assert_eq!(fixed(0.000049, 4), "0.0000");
-        assert_eq!(fixed(-1.23456, 2), "-1.23");
-        assert_eq!(fixed(3.3467265, 5), "3.34673");
-        assert_eq!(fixed(0.5, 0), "1");
-        assert_eq!(fixed(7.0, 0), "7");
-        assert_eq!(fixed(0.04, 1), "0.0");
-        assert_eq!(fixed(1e300, 4), format!("{:.4}", 1e300));
-        assert_eq!(format_value("ph_t", 8.0), "8.000000");
-        // Agrees with the exact formatter except at (near-)ties, where the exact formatter
-        // sees the binary value's side of the half and this one rounds the scaled value.
-        let near_tie = |x: f64, d: i32| ((x * 10f64.powi(d)).abs().fract() - 0.5).abs() < 1e-6;
-        for i in 0..20_000 {
-            let v = -700.0 + f64::from(i) * 0.0731;
-            if !near_tie(v, 4) {
-                assert_eq!(fixed(v, 4), format!("{v:.4}"), "{v}");
-            }
-            if !near_tie(v / 1000.0, 6) {
-                assert_eq!(fixed(v / 1000.0, 6), format!("{:.6}", v / 1000.0), "{v}");
-            }
-        }
+    fn two_ph_columns_are_refused_naming_both() {
+        let e = run_with(
+            "temp_c,salinity,ta,ph_t,ph_free\n25,35,2300,8.0,8.1\n",
+            &MethodSet::default(),
+        )
+        .unwrap_err();
+        assert_eq!(
+            e,
+            "the header has 2 pH columns (ph_t, ph_free); keep exactly one, named for its \
+             scale: ph_t (total), ph_sws (seawater), ph_free or ph_nbs"
+        );
     }
 
     #[test]
     fn out_of_fitted_range_is_solved_and_flagged() {
         let (out, s) = run_str("temp_c,salinity,ta,dic\n0.5,35,2300,2100\n");
-        assert!(
-            out.contains("warning: temp_c 0.50 °C is outside the K1/K2 fitted range"),
-            "{out}"
+        assert_eq!(
+            field(&out, 1, "problem"),
+            "warning: temp_c 0.50 °C is outside the K1/K2 fitted range 2–35 °C \
+             (Lueker, Dickson & Keeling (2000), Mar. Chem. 70:105); \
+             warning: temp_c 0.50 °C is outside the KF fitted range 9–33 °C \
+             (Perez & Fraga (1987), Mar. Chem. 21:161); \
+             warning: temp_c 0.50 °C is outside the Ksp fitted range 5–40 °C (Mucci 1983)"
         );
         assert_eq!(s.unsolved, 0);
+    }
+
+    #[test]
+    fn method_flags_use_catalogue_ids_and_messages() {
+        let e = "lueker".parse::<K1K2>().unwrap_err();
+        assert_eq!(e.suggestion, Some("lueker2000"));
+        assert!(
+            e.to_string()
+                .starts_with("unknown carbonic-acid constant set 'lueker'"),
+            "{e}"
+        );
+        // Uppström boron is 4 % below Lee et al.: less borate alkalinity at the same TA
+        // leaves more carbonate alkalinity, so pH is higher at the same DIC. The flag
+        // reaches the solver.
+        let m = MethodSet {
+            boron: "uppstrom1974".parse().unwrap(),
+            ..MethodSet::default()
+        };
+        let input = "temp_c,salinity,ta,dic\n25,35,2300,2000\n";
+        let (a, _) = run_str(input);
+        let (b, _) = run_with(input, &m).unwrap();
+        let ph = |o: &str| field(o, 1, "ph_t").parse::<f64>().unwrap();
+        assert!(ph(&b) > ph(&a), "{a}\n{b}");
     }
 }

@@ -362,17 +362,10 @@ impl Outlook {
     }
 }
 
-/// `v` with `decimals` fixed decimals; NaN or infinite as an empty field; never "-0.00".
+/// `v` with `decimals` fixed decimals (rounding rule of [`crate::numfmt`]); NaN or infinite
+/// as an empty field; never "-0.00".
 pub fn fixed(v: f64, decimals: usize) -> String {
-    if !v.is_finite() {
-        return String::new();
-    }
-    let s = format!("{v:.decimals$}");
-    if s.starts_with('-') && s[1..].chars().all(|c| c == '0' || c == '.') {
-        s[1..].to_string()
-    } else {
-        s
-    }
+    crate::numfmt::fixed(v, decimals).unwrap_or_default()
 }
 
 /// `v` rounded to `decimals` for JSON (`None` for NaN/infinite; −0 becomes 0).

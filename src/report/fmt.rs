@@ -10,14 +10,10 @@ pub const MISSING: &str = "–";
 
 /// A number with a fixed count of decimals; U+2212 for negatives; `–` when not finite.
 pub fn number(x: f64, decimals: usize) -> String {
-    if !x.is_finite() {
+    // Digits and rounding from `numfmt` (a rounded zero has no sign there).
+    let Some(s) = crate::numfmt::fixed(x, decimals) else {
         return MISSING.to_string();
-    }
-    let s = format!("{x:.decimals$}");
-    // "-0.00" → "0.00": a rounded zero has no sign.
-    if s.starts_with('-') && s.bytes().skip(1).all(|b| b == b'0' || b == b'.') {
-        return s.trim_start_matches('-').to_string();
-    }
+    };
     match s.strip_prefix('-') {
         Some(rest) => format!("\u{2212}{rest}"),
         None => s,
