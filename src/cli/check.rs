@@ -64,7 +64,9 @@ pub fn run_check(args: &CheckArgs) -> i32 {
     };
     match loaded {
         Ok(site) => {
-            let shown = site_diagnostics(&site, verbose);
+            let mut shown = site_diagnostics(&site, verbose);
+            // Rows the outlook will leave out, by the outlook's own test.
+            shown.extend(crate::outlook::from_site::rows_left_out(&site));
             let printed = match args.format {
                 CheckFormat::Text => super::print_out(&summary_text(&site)),
                 CheckFormat::Json => print_json(&JsonOut {
@@ -99,9 +101,12 @@ pub fn run_check(args: &CheckArgs) -> i32 {
     }
 }
 
-/// Row findings of one kind in one file shown in full before the rest are summarised (all
-/// of them with `--verbose`).
+/// Row errors of one kind in one file shown in full before the rest are summarised (all of
+/// them with `--verbose`).
 pub const SHOWN_PER_GROUP: usize = 10;
+/// Row warnings and notes of one kind in one file shown in full before the rest are
+/// summarised in one line, so that an ordinary lab file gives a screenful at most.
+pub const SHOWN_PER_GROUP_NOT_ERRORS: usize = 1;
 
 /// Every finding of a loaded site as `check` shows it: site-level diagnostics with the row
 /// findings grouped among them.
@@ -130,14 +135,24 @@ fn group_rows(findings: &[Finding], verbose: bool) -> Diagnostics {
     type Key<'a> = (Severity, usize, FindingKind, Option<&'a str>);
     let mut groups: Vec<(Vec<&Finding>, Vec<usize>)> = Vec::new();
     let mut index: HashMap<Key<'_>, usize> = HashMap::new();
+    let mut out_of_order: BTreeMap<usize, Vec<&Finding>> = BTreeMap::new();
     for f in findings {
+        if f.kind == FindingKind::OutOfOrder && !verbose {
+            out_of_order.entry(f.file_index).or_default().push(f);
+            continue;
+        }
+        let shown_max = if f.severity == Severity::Error {
+            SHOWN_PER_GROUP
+        } else {
+            SHOWN_PER_GROUP_NOT_ERRORS
+        };
         let key = (f.severity, f.file_index, f.kind, f.field.as_deref());
         let gi = *index.entry(key).or_insert_with(|| {
             groups.push((Vec::new(), Vec::new()));
             groups.len() - 1
         });
         if let Some((shown, rest)) = groups.get_mut(gi) {
-            if verbose || shown.len() < SHOWN_PER_GROUP {
+            if verbose || shown.len() < shown_max {
                 shown.push(f);
             } else {
                 rest.push(f.line);
@@ -188,6 +203,21 @@ fn group_rows(findings: &[Finding], verbose: bool) -> Diagnostics {
             }
             out.push(d);
         }
+    }
+    // Dates out of order: one note per file (rows need not be sorted).
+    for rows in out_of_order.values() {
+        let Some(first) = rows.first() else { continue };
+        let lines: Vec<usize> = rows.iter().map(|f| f.line).collect();
+        out.push(
+            Diagnostic::note(format!(
+                "{} {} a date earlier than the previous row of the same station (lines {}); rows kept: records need not be in date order",
+                rows.len(),
+                if rows.len() == 1 { "row has" } else { "rows have" },
+                line_ranges(&lines)
+            ))
+            .with_file(&*first.file)
+            .with_field("date"),
+        );
     }
     out
 }
@@ -349,6 +379,86 @@ fn table(rows: &[Vec<String>]) -> String {
     out
 }
 
+/// The TA–salinity fit and the salinity-normalised TA, with their rules, for the summary.
+fn ta_salinity_text(ls: &LoadedSite) -> String {
+    use crate::site::baseline::{MIN_TA_FIT_SAMPLES, NtaForm};
+    let mut o = String::new();
+    let floor = ls.site.baseline.salinity_floor();
+    let left: usize = ls.records.iter().map(|r| r.below_salinity_floor).sum();
+    if left > 0 {
+        let _ = writeln!(
+            o,
+            "\nLeft out of the baseline and outlook: {left} rows with salinity below {floor} ([baseline] salinity_floor); they stay in the per-sample list"
+        );
+    }
+    let w = &ls.baseline.whole_record;
+    let nta = &ls.baseline.nta;
+    let form = match nta.form {
+        NtaForm::Proportional => "TA·35/S".to_string(),
+        NtaForm::FreshwaterEndMember { ta_s0_umol_kg } => format!(
+            "(TA − TA_S0)/S·35 + TA_S0 with TA_S0 {ta_s0_umol_kg:.0} µmol/kg, the freshwater end-member of the TA–salinity fit (Friis et al. 2003)"
+        ),
+    };
+    if w.nta_umol_kg.n > 0 {
+        let _ = writeln!(
+            o,
+            "\nSalinity-normalised TA ({form}; measured TA at S ≥ {}): {} µmol/kg, n {}",
+            nta.min_salinity,
+            mean_sd(&w.nta_umol_kg, 1),
+            w.nta_umol_kg.n
+        );
+    } else {
+        let _ = writeln!(
+            o,
+            "\nSalinity-normalised TA: none (no measured TA at S ≥ {})",
+            nta.min_salinity
+        );
+    }
+    if nta.below_min_salinity + nta.outside_physical_range > 0 {
+        let _ = writeln!(
+            o,
+            "  not normalised: {} samples below S {}, {} outside the physical range",
+            nta.below_min_salinity, nta.min_salinity, nta.outside_physical_range
+        );
+    }
+    match &ls.baseline.ta_salinity {
+        Some(f) => {
+            let _ = writeln!(
+                o,
+                "TA–salinity regression over bottle samples: TA = {:.1} + {:.2}·S, r² {:.3}, n {}, S {:.2}–{:.2}, prediction standard error {:.1} µmol/kg (n − 2 degrees of freedom, at the mean salinity); {}",
+                f.intercept_umol_kg,
+                f.slope,
+                f.r2,
+                f.n,
+                f.salinity_min,
+                f.salinity_max,
+                f.prediction_se_umol_kg,
+                match f.model {
+                    TaModelKind::Linear => format!(
+                        "rows without TA use it (rms residual {:.1} µmol/kg)",
+                        f.rmse_umol_kg
+                    ),
+                    TaModelKind::Proportional if f.is_poor() => format!(
+                        "the fit is poor (r² below 0.5 or residual standard error above 20 µmol/kg) and is not used; rows without TA use a constant nTA (rms residual {:.1} µmol/kg)",
+                        f.rmse_umol_kg
+                    ),
+                    TaModelKind::Proportional => format!(
+                        "the salinity range is too narrow for a slope; rows without TA use a constant nTA (rms residual {:.1} µmol/kg)",
+                        f.rmse_umol_kg
+                    ),
+                }
+            );
+        }
+        None => {
+            let _ = writeln!(
+                o,
+                "TA–salinity regression: not available (fewer than {MIN_TA_FIT_SAMPLES} bottle samples with TA)"
+            );
+        }
+    }
+    o
+}
+
 /// The text summary printed by `check`.
 pub fn summary_text(ls: &LoadedSite) -> String {
     let s = &ls.site.site;
@@ -387,6 +497,40 @@ pub fn summary_text(ls: &LoadedSite) -> String {
         ls.methods.kf
     );
 
+    o.push_str(&records_table(ls));
+    o.push_str(&coverage_table(ls));
+    o.push_str(&baseline_table(ls));
+    o.push_str(&ta_salinity_text(ls));
+    o.push_str(&diel_table(ls));
+    let c = &ls.baseline.calcification;
+    let _ = writeln!(
+        o,
+        "\nNet calcification used as the present rate: {} kg CaCO3 m⁻² yr⁻¹ ({}){}",
+        c.net_calcification_kg_m2_yr,
+        c.source,
+        c.coral_cover_fraction
+            .map(|f| format!("; coral cover {:.0} %", f * 100.0))
+            .unwrap_or_default()
+    );
+    let (e, wn, n) = (
+        ls.count(Severity::Error),
+        ls.count(Severity::Warning),
+        ls.count(Severity::Note),
+    );
+    let _ = writeln!(
+        o,
+        "\nQC findings: {e} errors, {wn} warnings, {n} notes (grouped on standard error; --verbose lists every row)"
+    );
+    let _ = writeln!(
+        o,
+        "Screening-level estimate, not a permit determination; biological and local factors are not modelled."
+    );
+    o
+}
+
+/// The records table of the summary.
+fn records_table(ls: &LoadedSite) -> String {
+    let mut o = String::new();
     let _ = writeln!(o, "\nRecords");
     let mut rows = vec![vec![
         "file".to_string(),
@@ -431,6 +575,12 @@ pub fn summary_text(ls: &LoadedSite) -> String {
     }
     o.push_str(&table(&rows));
 
+    o
+}
+
+/// Rows kept per season and record file.
+fn coverage_table(ls: &LoadedSite) -> String {
+    let mut o = String::new();
     let _ = writeln!(o, "\nCoverage per season (rows kept)");
     let mut rows = vec![{
         let mut h = vec!["season".to_string(), "months".to_string()];
@@ -453,6 +603,12 @@ pub fn summary_text(ls: &LoadedSite) -> String {
     }
     o.push_str(&table(&rows));
 
+    o
+}
+
+/// The seasonal baseline table.
+fn baseline_table(ls: &LoadedSite) -> String {
+    let mut o = String::new();
     let _ = writeln!(
         o,
         "\nBaseline (mean±sd; TA, DIC in µmol/kg, pCO2 in µatm, at in-situ temperature)"
@@ -492,40 +648,13 @@ pub fn summary_text(ls: &LoadedSite) -> String {
     }
     o.push_str(&table(&rows));
 
+    o
+}
+
+/// The diel ranges, when the records resolve the time of day.
+fn diel_table(ls: &LoadedSite) -> String {
+    let mut o = String::new();
     let w = &ls.baseline.whole_record;
-    if w.nta_umol_kg.n > 0 {
-        let _ = writeln!(
-            o,
-            "\nSalinity-normalised TA (TA·35/S, measured TA): {} µmol/kg, n {}",
-            mean_sd(&w.nta_umol_kg, 1),
-            w.nta_umol_kg.n
-        );
-    }
-    match &ls.baseline.ta_salinity {
-        Some(f) => {
-            let _ = writeln!(
-                o,
-                "TA–salinity regression over bottle samples: TA = {:.1} + {:.2}·S, r² {:.3}, n {}, S {:.2}–{:.2}; rows without TA use the {} model (rms residual {:.1} µmol/kg)",
-                f.intercept_umol_kg,
-                f.slope,
-                f.r2,
-                f.n,
-                f.salinity_min,
-                f.salinity_max,
-                match f.model {
-                    TaModelKind::Linear => "linear",
-                    TaModelKind::Proportional => "proportional (constant nTA)",
-                },
-                f.rmse_umol_kg
-            );
-        }
-        None => {
-            let _ = writeln!(
-                o,
-                "TA–salinity regression: not available (fewer than 3 bottle samples with TA)"
-            );
-        }
-    }
     let diel: Vec<_> = ls
         .baseline
         .seasons
@@ -558,29 +687,6 @@ pub fn summary_text(ls: &LoadedSite) -> String {
         }
         o.push_str(&table(&rows));
     }
-    let c = &ls.baseline.calcification;
-    let _ = writeln!(
-        o,
-        "\nNet calcification used as the present rate: {} kg CaCO3 m⁻² yr⁻¹ ({}){}",
-        c.net_calcification_kg_m2_yr,
-        c.source,
-        c.coral_cover_fraction
-            .map(|f| format!("; coral cover {:.0} %", f * 100.0))
-            .unwrap_or_default()
-    );
-    let (e, wn, n) = (
-        ls.count(Severity::Error),
-        ls.count(Severity::Warning),
-        ls.count(Severity::Note),
-    );
-    let _ = writeln!(
-        o,
-        "\nQC findings: {e} errors, {wn} warnings, {n} notes (listed on standard error)"
-    );
-    let _ = writeln!(
-        o,
-        "Screening-level estimate, not a permit determination; biological and local factors are not modelled."
-    );
     o
 }
 

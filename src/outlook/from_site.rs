@@ -35,7 +35,8 @@ pub fn site_input(loaded: &LoadedSite) -> SiteInput {
     let records: Vec<ProjectionRecord> = loaded
         .samples
         .iter()
-        .filter_map(|smp| record_of(smp, ta_fit_rmse))
+        .filter_map(|smp| projectable(smp, ta_fit_rmse))
+        .filter_map(Result::ok)
         .collect();
     SiteInput {
         name: loaded.site.site.name.clone(),
@@ -44,6 +45,35 @@ pub fn site_input(loaded: &LoadedSite) -> SiteInput {
         methods: loaded.methods,
         observed: Observed::noaa(),
     }
+}
+
+/// The projection record of a sample the outlook uses (solved, above the site's salinity
+/// floor), or why the projection cannot take it; `None` for rows the site left out.
+fn projectable(smp: &Sample, ta_fit_rmse: Option<f64>) -> Option<Result<ProjectionRecord, String>> {
+    if !smp.is_used() {
+        return None;
+    }
+    let r = record_of(smp, ta_fit_rmse)?;
+    Some(r.validate().map(|()| r).map_err(|e| e.to_string()))
+}
+
+/// Rows the outlook leaves out although the site uses them (outside the projection's
+/// limits), as warnings naming file and line: the same test [`from_loaded_site`] applies, so
+/// that `check` shows what `project` will leave out.
+pub fn rows_left_out(loaded: &LoadedSite) -> Diagnostics {
+    let rmse = loaded.baseline.ta_salinity.as_ref().map(|f| f.rmse_umol_kg);
+    loaded
+        .samples
+        .iter()
+        .filter_map(|smp| match projectable(smp, rmse)? {
+            Ok(_) => None,
+            Err(m) => Some(
+                Diagnostic::warning(format!("{m}; the row is left out of the outlook"))
+                    .with_file(&*smp.source_file)
+                    .with_line(smp.line),
+            ),
+        })
+        .collect()
 }
 
 /// The projection settings of a loaded site, checked, without building the per-record
@@ -59,10 +89,15 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
     };
     let site_file = &loaded.site;
 
-    if !loaded.samples.iter().any(|smp| smp.state.is_some()) {
+    let rmse = loaded.baseline.ta_salinity.as_ref().map(|f| f.rmse_umol_kg);
+    if !loaded
+        .samples
+        .iter()
+        .any(|smp| matches!(projectable(smp, rmse), Some(Ok(_))))
+    {
         return Err(err(
             "records",
-            "no record row has a solved carbonate state, so nothing can be projected".into(),
+            "no record row has a solved carbonate state the projection can use (above the salinity floor, within the projection's limits), so nothing can be projected".into(),
             "each row needs two of TA, DIC, pH, pCO2/fCO2 (run `calcisite check` for details)",
         ));
     }

@@ -656,7 +656,7 @@ fn sample_rows(loaded: &LoadedSite) -> Vec<SampleRow> {
                 omega_ca: st.map(|x| x.omega_ca),
                 measured,
                 flags,
-                used: st.is_some(),
+                used: s.is_used(),
             }
         })
         .collect()

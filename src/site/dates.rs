@@ -432,14 +432,19 @@ mod tests {
         )
         .unwrap_or_else(|e| panic!("{e:?}"));
         assert_eq!(e.time.hour(), 23);
+        let e = parse_stamp(
+            "05/03/2024 08:00",
+            Some("23:10"),
+            DateFormat::DayFirst,
+            off(10),
+        )
+        .err()
+        .unwrap_or_else(|| panic!("accepted"));
         assert!(
-            parse_stamp(
-                "05/03/2024 08:00",
-                Some("23:10"),
-                DateFormat::DayFirst,
-                off(10)
-            )
-            .is_err()
+            e.message
+                .contains("has a time of day, and the time column also gives `23:10`"),
+            "{}",
+            e.message
         );
     }
 
@@ -469,10 +474,21 @@ mod tests {
             .err()
             .unwrap_or_else(|| panic!("accepted"));
         assert!(e.message.contains("four digits"));
-        assert!(p("2024-03-05T25:00", DateFormat::Iso).is_err());
-        assert!(p("2024-03-05T12:00+25:00", DateFormat::Iso).is_err());
-        assert!(p("2024-03-05x", DateFormat::Iso).is_err());
-        assert!(p("", DateFormat::Iso).is_err());
+        let msg = |s: &str| {
+            p(s, DateFormat::Iso)
+                .err()
+                .map(|e| e.message)
+                .unwrap_or_else(|| panic!("`{s}` accepted"))
+        };
+        let m = msg("2024-03-05T25:00");
+        assert!(m.contains("`25:00` is not a valid time of day"), "{m}");
+        let m = msg("2024-03-05T12:00+25:00");
+        assert!(
+            m.contains("`+25:00` in `12:00+25:00` is not a UTC offset"),
+            "{m}"
+        );
+        assert_eq!(msg("2024-03-05x"), "`2024-03-05x` is not a date");
+        assert_eq!(msg(""), "the date is empty");
     }
 
     #[test]
@@ -487,9 +503,13 @@ mod tests {
             .err()
             .unwrap_or_else(|| panic!("accepted"));
         assert!(e.help.contains("decimal separator"));
-        assert!(parse_number("inf", &[]).is_err());
-        assert!(parse_number("1e999", &[]).is_err());
-        assert!(parse_number("abc", &[]).is_err());
+        let msg = |s: &str| parse_number(s, &[]).err().map(|e| e.message);
+        assert_eq!(msg("inf").as_deref(), Some("`inf` is not a finite number"));
+        assert_eq!(
+            msg("1e999").as_deref(),
+            Some("`1e999` is not a finite number")
+        );
+        assert_eq!(msg("abc").as_deref(), Some("`abc` is not a number"));
     }
 
     proptest! {

@@ -50,6 +50,8 @@ pub enum FindingKind {
     MethodRange,
     /// Estimated TA extrapolated outside the TA–salinity fit's salinity range.
     TaFitRange,
+    /// Dates out of order as read, in order with day and month swapped.
+    DateFormat,
     /// Salinity below the site's floor: the row is left out of the baseline and the outlook.
     BelowSalinityFloor,
 }
@@ -75,6 +77,7 @@ impl FindingKind {
             FindingKind::Inconsistent => "inconsistent",
             FindingKind::MethodRange => "method-range",
             FindingKind::TaFitRange => "ta-fit-range",
+            FindingKind::DateFormat => "date-format",
             FindingKind::BelowSalinityFloor => "below-salinity-floor",
         }
     }

@@ -169,8 +169,14 @@ mod tests {
         let dir = tempfile::tempdir().unwrap_or_else(|e| panic!("{e}"));
         let target = dir.path().join(SITE_FILE);
         std::fs::write(&target, "keep me").unwrap_or_else(|e| panic!("{e}"));
-        let r = write_templates(dir.path());
-        assert!(r.is_err());
+        let e = write_templates(dir.path())
+            .err()
+            .unwrap_or_else(|| panic!("overwrote"))
+            .to_string();
+        assert!(
+            e.contains("site.toml already exists; nothing was written"),
+            "{e}"
+        );
         assert_eq!(
             std::fs::read_to_string(&target).unwrap_or_default(),
             "keep me"

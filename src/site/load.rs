@@ -14,7 +14,7 @@ use super::findings::{Finding, FindingKind, has_error};
 use super::records::{self, Columns, FileUnits, ReadContext, Stations, TaModel};
 use super::schema::{self, Co2Kind, ConcUnit, PhScaleName, RecordKind, SiteFile};
 use super::validate::Resolved;
-use super::{LoadFailure, Pair, RecordSummary, Sample, qc};
+use super::{LoadFailure, Pair, RecordSummary, RowFlags, Sample, qc};
 use crate::diag::{Diagnostic, Diagnostics, Severity};
 
 /// Reads the site file as UTF-8 text (an error naming the first bad byte otherwise).
@@ -331,6 +331,20 @@ impl<'a> Run<'a> {
         }
     }
 
+    /// Flags rows below the salinity floor (left out of baseline and outlook) and brackish
+    /// rows; adds the site-level finding about brackish water.
+    pub fn apply_salinity_floor(&mut self) {
+        let floor = self.site.baseline.salinity_floor();
+        let ranges = &self.ranges;
+        let file_of = |i: usize| ranges.iter().position(|r| r.contains(&i)).unwrap_or(0);
+        let (rows, site) =
+            super::brackish::apply(&mut self.samples, &self.drop, floor, &file_of, self.path);
+        self.findings.extend(rows);
+        if let Some(d) = site {
+            self.diags.push(d);
+        }
+    }
+
     /// What each record file contributed (kept rows only).
     pub fn summaries(&self) -> Vec<RecordSummary> {
         let mut summaries: Vec<RecordSummary> = self
@@ -349,6 +363,7 @@ impl<'a> Run<'a> {
                 sub_daily: false,
                 rows_per_season: vec![0; self.res.seasons.len()],
                 pairs: BTreeMap::new(),
+                below_salinity_floor: 0,
             })
             .collect();
         for (sum, r) in summaries.iter_mut().zip(&self.ranges) {
@@ -445,6 +460,7 @@ fn summarise(sum: &mut RecordSummary, smp: &Sample) {
     sum.last = Some(sum.last.map_or(smp.time, |l| l.max(smp.time)));
     sum.solved += usize::from(smp.state.is_some());
     sum.ta_estimated += usize::from(smp.ta_estimated);
+    sum.below_salinity_floor += usize::from(smp.flags.contains(RowFlags::BELOW_SALINITY_FLOOR));
 }
 
 /// One warning naming every season with too few solved samples.

@@ -16,6 +16,7 @@
 //! * µmol/L is converted with the TEOS-10 density at the sample's in-situ T, S and pressure.
 
 pub mod baseline;
+pub mod brackish;
 pub mod dates;
 pub mod findings;
 pub mod init;
@@ -107,6 +108,14 @@ impl LoadedSite {
             .unwrap_or_else(|| Utc::now().year())
     }
 
+    /// Rows left out of the baseline and the outlook because their salinity is below the
+    /// site's floor (they stay in [`LoadedSite::samples`] for the per-sample list).
+    pub fn left_out(&self) -> impl Iterator<Item = &Sample> {
+        self.samples
+            .iter()
+            .filter(|s| s.flags.contains(RowFlags::BELOW_SALINITY_FLOOR))
+    }
+
     /// Number of findings (site-level and row) of `severity`.
     pub fn count(&self, severity: Severity) -> usize {
         self.findings.count(severity) + self.qc.iter().filter(|f| f.severity == severity).count()
@@ -134,6 +143,8 @@ pub struct RecordSummary {
     pub rows_per_season: Vec<usize>,
     /// How many rows were solved from each pair (label → count).
     pub pairs: BTreeMap<String, usize>,
+    /// Kept rows below the site's salinity floor (not in the baseline or the outlook).
+    pub below_salinity_floor: usize,
 }
 
 /// Why a site could not be loaded: site-level diagnostics and typed row findings (errors
@@ -209,6 +220,7 @@ pub fn load_site_at(path: &Path, now: DateTime<Utc>) -> Result<LoadedSite, LoadF
     run.stop_on_errors()?;
     run.solve_all();
     run.stop_on_errors()?;
+    run.apply_salinity_floor();
     let summaries = run.summaries();
     let out = run.finish(summaries)?;
     Ok(LoadedSite {

@@ -111,9 +111,24 @@ pub struct BaselineInputs {
     /// Where the site's numbers come from (survey, paper), free text.
     #[serde(default)]
     pub source: Option<String>,
+    /// Rows with a salinity below this are left out of the baseline and the outlook (they
+    /// stay in the per-sample appendix); default [`DEFAULT_SALINITY_FLOOR`].
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub salinity_floor: Option<f64>,
 }
 
+/// Default salinity floor of the baseline and the outlook: 5, the lower end of the salinity
+/// range over which the aragonite and calcite solubility of Mucci (1983) was fitted (S 5–44,
+/// the range the chemistry module warns outside of). Below it Omega_ar rests on no fitted
+/// constant at all.
+pub const DEFAULT_SALINITY_FLOOR: f64 = 5.0;
+
 impl BaselineInputs {
+    /// The salinity floor in use: the site's, or [`DEFAULT_SALINITY_FLOOR`].
+    pub fn salinity_floor(&self) -> f64 {
+        self.salinity_floor.unwrap_or(DEFAULT_SALINITY_FLOOR)
+    }
+
     /// The calcification rate to use and where it comes from: the site's own value, or the
     /// documented literature default.
     pub fn net_calcification(&self) -> (f64, String) {

@@ -272,6 +272,10 @@ fn check_baseline(c: &mut Checker<'_>, site: &SiteFile) {
             );
         }
     }
+    if let Some(v) = b.salinity_floor {
+        let (lo, hi) = SALINITY_RANGE;
+        c.range("baseline.salinity_floor", "salinity_floor", v, lo, hi, "");
+    }
     if let Some(v) = b.coral_cover_fraction
         && !(0.0..=1.0).contains(&v)
     {

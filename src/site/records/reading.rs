@@ -6,7 +6,7 @@ use std::io::BufReader;
 use std::path::Path;
 use std::sync::Arc;
 
-use chrono::{DateTime, Datelike, FixedOffset, Utc};
+use chrono::{DateTime, Datelike, FixedOffset, NaiveDate, NaiveDateTime, Utc};
 
 use super::columns::{Columns, resolve_columns};
 use super::sample::{Measured, RowFlags, Sample};
@@ -15,7 +15,7 @@ use crate::chem;
 use crate::diag::Severity;
 use crate::site::dates::{CellError, parse_number, parse_stamp};
 use crate::site::findings::{Finding, FindingKind, Value};
-use crate::site::schema::{Co2Kind, OutOfRange, RecordSpec};
+use crate::site::schema::{Co2Kind, DateFormat, OutOfRange, RecordSpec};
 
 /// Everything reading needs to know about the site.
 pub(crate) struct ReadContext<'a> {
@@ -88,6 +88,8 @@ pub(crate) fn read_record(
         station_fixed: ctx.spec.station.as_deref().map(|s| stations.get(s)),
         last_time: HashMap::new(),
         last_station: None,
+        times: Vec::new(),
+        out_of_order: 0,
     };
     let mut rec = csv::ByteRecord::new();
     let start_len = out.len();
@@ -125,6 +127,11 @@ pub(crate) fn read_record(
         if let Some(s) = rows.row(&rec, line, stations, findings) {
             out.push(s);
         }
+    }
+    if rows.out_of_order > 0
+        && let Some(f) = rows.date_format_hint(header_line)
+    {
+        findings.push(f);
     }
     if out.len() == start_len
         && !findings
@@ -241,6 +248,10 @@ struct RowReader<'a, 'c> {
     /// Time and line of each station's previous row (for the date-order check).
     last_time: HashMap<Arc<str>, (DateTime<FixedOffset>, usize)>,
     last_station: Option<Arc<str>>,
+    /// Station and local time of every row read, in file order (for the date-format test).
+    times: Vec<(Arc<str>, NaiveDateTime)>,
+    /// Rows with a date earlier than their station's previous row.
+    out_of_order: usize,
 }
 
 impl RowReader<'_, '_> {
@@ -563,13 +574,15 @@ impl RowReader<'_, '_> {
         line: usize,
         findings: &mut Vec<Finding>,
     ) {
+        self.times.push((station.clone(), time.naive_local()));
         if let Some((prev, prev_line)) = self.last_time.get(station)
             && time < *prev
         {
+            self.out_of_order += 1;
             findings.push(
                 self.ctx
                     .finding(
-                        Severity::Warning,
+                        Severity::Note,
                         FindingKind::OutOfOrder,
                         line,
                         format!(
@@ -587,10 +600,96 @@ impl RowReader<'_, '_> {
     }
 }
 
+impl RowReader<'_, '_> {
+    /// A warning that the record's date format is probably the other one: only for day-first
+    /// or month-first records, and only when every date also reads as a valid date with day
+    /// and month swapped and, read that way, every station's rows are in time order.
+    fn date_format_hint(&self, header_line: usize) -> Option<Finding> {
+        let (now, other) = match self.ctx.spec.date_format {
+            DateFormat::DayFirst => ("day-first", "month-first"),
+            DateFormat::MonthFirst => ("month-first", "day-first"),
+            DateFormat::Iso => return None,
+        };
+        if !swapped_dates_are_in_order(&self.times) {
+            return None;
+        }
+        Some(
+            self.ctx
+                .finding(
+                    Severity::Warning,
+                    FindingKind::DateFormat,
+                    header_line,
+                    format!(
+                        "{} rows of {} have dates earlier than their station's previous row when read {now}; every date also reads as a valid date with day and month swapped, and read that way every station's rows are in time order: the dates are probably {other}",
+                        self.out_of_order,
+                        self.ctx.path.display()
+                    ),
+                )
+                .with_cell(Some(self.cols.date))
+                .with_field("date")
+                .with_help(format!(
+                    "if the file writes dates {other}, set date_format = \"{other}\" in its [[records]] table"
+                )),
+        )
+    }
+}
+
+/// True when every date, with day and month swapped, is a valid date and the swapped times
+/// of each station are non-decreasing in file order.
+fn swapped_dates_are_in_order(times: &[(Arc<str>, NaiveDateTime)]) -> bool {
+    let mut last: HashMap<&str, NaiveDateTime> = HashMap::new();
+    for (station, t) in times {
+        let d = t.date();
+        let Some(swapped) = NaiveDate::from_ymd_opt(d.year(), d.day(), d.month()) else {
+            return false;
+        };
+        let t2 = swapped.and_time(t.time());
+        if last.get(&**station).is_some_and(|p| t2 < *p) {
+            return false;
+        }
+        last.insert(station, t2);
+    }
+    true
+}
+
 /// The text of cell `i`.
 fn cell(rec: &csv::ByteRecord, i: usize) -> Result<&str, CellError> {
     std::str::from_utf8(rec.get(i).unwrap_or(b"")).map_err(|_| CellError {
         message: "the cell is not valid UTF-8 text".to_string(),
         help: "save the file as UTF-8".to_string(),
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn rows(dates: &[(&str, u32, u32)]) -> Vec<(Arc<str>, NaiveDateTime)> {
+        dates
+            .iter()
+            .map(|&(st, m, d)| {
+                let t = NaiveDate::from_ymd_opt(2024, m, d)
+                    .and_then(|x| x.and_hms_opt(0, 0, 0))
+                    .unwrap_or_else(|| panic!("bad test date"));
+                (Arc::from(st), t)
+            })
+            .collect()
+    }
+
+    /// Month-first dates 01/12, 02/03, 02/10 (12 Jan, 3 Feb, 10 Feb) read day-first are
+    /// 1 Dec, 2 Mar, 2 Oct: out of order; swapped they are in order, so the hint applies.
+    /// With a day above 12 (25 Mar) no swapped reading exists, and no hint is given.
+    #[test]
+    fn swapped_dates_decide_the_format_hint() {
+        let read = rows(&[("A", 12, 1), ("A", 3, 2), ("A", 10, 2)]);
+        assert!(swapped_dates_are_in_order(&read));
+        let not = rows(&[("A", 12, 1), ("A", 3, 25), ("A", 10, 2)]);
+        assert!(!swapped_dates_are_in_order(&not));
+        // Swapped but still out of order within a station: no hint.
+        let unsorted = rows(&[("A", 2, 3), ("A", 1, 2)]);
+        assert!(!swapped_dates_are_in_order(&unsorted));
+        // Each station separately.
+        let two = rows(&[("A", 12, 1), ("B", 1, 1), ("A", 3, 2)]);
+        assert!(swapped_dates_are_in_order(&two));
+    }
 }

@@ -162,6 +162,14 @@ pub struct Sample {
     pub flags: RowFlags,
 }
 
+impl Sample {
+    /// True when the row feeds the baseline and the outlook: solved, and not below the site's
+    /// salinity floor.
+    pub fn is_used(&self) -> bool {
+        self.state.is_some() && !self.flags.contains(RowFlags::BELOW_SALINITY_FLOOR)
+    }
+}
+
 /// QC notes on a kept row, as a compact bit set (a million-row series stays small).
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub struct RowFlags(u8);
@@ -173,8 +181,13 @@ impl RowFlags {
     pub const PH_CO2_PAIR: RowFlags = RowFlags(2);
     /// Measured and calculated values disagree beyond the documented tolerance.
     pub const INCONSISTENT: RowFlags = RowFlags(4);
+    /// Salinity below the site's floor: left out of the baseline and the outlook.
+    pub const BELOW_SALINITY_FLOOR: RowFlags = RowFlags(8);
+    /// Brackish (S below [`crate::site::brackish::BRACKISH_SALINITY`]): the constant sets are
+    /// fitted for seawater, so Omega_ar is indicative at best.
+    pub const BRACKISH: RowFlags = RowFlags(16);
 
-    const LABELS: [(RowFlags, &'static str); 3] = [
+    const LABELS: [(RowFlags, &'static str); 5] = [
         (
             Self::TA_FIT_EXTRAPOLATED,
             "salinity outside the TA–salinity fit range",
@@ -184,6 +197,14 @@ impl RowFlags {
             "solved from pH with pCO2/fCO2 (poorly conditioned)",
         ),
         (Self::INCONSISTENT, "internally inconsistent"),
+        (
+            Self::BELOW_SALINITY_FLOOR,
+            "salinity below the site's floor: not in the baseline or outlook",
+        ),
+        (
+            Self::BRACKISH,
+            "brackish: Omega_ar indicative only (constants fitted for seawater)",
+        ),
     ];
 
     pub fn contains(self, f: RowFlags) -> bool {

@@ -1,11 +1,13 @@
-//! Choosing each row's pair and solving its carbonate state, with the consistency check of
-//! rows that measured more than two quantities.
+//! Solving each row's carbonate state with the chemistry module's one measured-pair solver
+//! (`chem::measured`: the order of preference, the state, and the consistency misfits of
+//! rows that measured more than two quantities), and turning its outcome into row findings.
 
 use rayon::prelude::*;
 
 use super::sample::{Measured, Pair, RowFlags, Sample};
 use super::units::{FileUnits, limit_finding};
-use crate::chem::{self, CarbonateState, Conditions, Constants, Input, MethodSet};
+use crate::chem::measured::{self, MeasuredError, MeasuredParams, Misfit, Options, Param};
+use crate::chem::{self, Conditions, Constants, MethodSet};
 use crate::diag::Severity;
 use crate::site::findings::{Finding, FindingKind, Value};
 use crate::site::schema::PhScaleName;
@@ -19,55 +21,38 @@ pub(crate) struct TaModel {
     pub s_max: f64,
 }
 
-/// Chooses the pair to solve from, in the documented order of preference.
-pub(crate) fn choose_pair(m: &Measured, ta_est: Option<f64>) -> Option<(Pair, Input, Input, bool)> {
-    use Input as I;
-    let (ta, dic, ph, pco2, fco2) = (m.ta(), m.dic(), m.ph_t(), m.pco2(), m.fco2());
-    let measured = [
-        (Pair::TaDic, ta.map(I::Ta), dic.map(I::Dic)),
-        (Pair::TaPh, ta.map(I::Ta), ph.map(I::PhT)),
-        (Pair::TaPco2, ta.map(I::Ta), pco2.map(I::Pco2)),
-        (Pair::TaFco2, ta.map(I::Ta), fco2.map(I::Fco2)),
-        (Pair::DicPh, dic.map(I::Dic), ph.map(I::PhT)),
-        (Pair::DicPco2, dic.map(I::Dic), pco2.map(I::Pco2)),
-        (Pair::DicFco2, dic.map(I::Dic), fco2.map(I::Fco2)),
-    ];
-    for (p, a, b) in measured {
-        if let (Some(a), Some(b)) = (a, b) {
-            return Some((p, a, b, false));
-        }
-    }
-    if ta.is_none()
-        && let Some(t) = ta_est
-    {
-        for (p, b) in [
-            (Pair::TaPh, ph.map(I::PhT)),
-            (Pair::TaPco2, pco2.map(I::Pco2)),
-            (Pair::TaFco2, fco2.map(I::Fco2)),
-        ] {
-            if let Some(b) = b {
-                return Some((p, I::Ta(t), b, true));
-            }
-        }
-    }
-    for (p, a, b) in [
-        (Pair::PhPco2, ph.map(I::PhT), pco2.map(I::Pco2)),
-        (Pair::PhFco2, ph.map(I::PhT), fco2.map(I::Fco2)),
-    ] {
-        if let (Some(a), Some(b)) = (a, b) {
-            return Some((p, a, b, false));
-        }
-    }
-    None
+/// Internal-consistency tolerances, defined with their basis in `chem::measured`.
+pub use crate::chem::measured::{TOL_CO2_FRACTION, TOL_PH, TOL_TA_DIC_UMOL_KG};
+
+/// The site's pair label of a pair the measured-pair solver chose (`None` for pairs with
+/// carbonate ion, which record files do not carry).
+fn site_pair(p: measured::Pair) -> Option<Pair> {
+    use Param::*;
+    Some(match (p.0, p.1) {
+        (Ta, Dic) => Pair::TaDic,
+        (Ta, PhT) => Pair::TaPh,
+        (Ta, Pco2) => Pair::TaPco2,
+        (Ta, Fco2) => Pair::TaFco2,
+        (Dic, PhT) => Pair::DicPh,
+        (Dic, Pco2) => Pair::DicPco2,
+        (Dic, Fco2) => Pair::DicFco2,
+        (PhT, Pco2) => Pair::PhPco2,
+        (PhT, Fco2) => Pair::PhFco2,
+        _ => return None,
+    })
 }
 
-/// Internal-consistency tolerances (measured − calculated) for rows with three or more
-/// measured carbonate quantities. Common practice; the pH and TA/DIC values equal the
-/// GOA-ON "weather" quality goals (Newton et al. 2015, from memory; fact sheet §2c), the
-/// pCO2 tolerance is twice that goal to allow for equilibrator and constant errors.
-pub const TOL_PH: f64 = 0.02;
-pub const TOL_TA_DIC_UMOL_KG: f64 = 10.0;
-pub const TOL_CO2_FRACTION: f64 = 0.05;
+/// The row's measured values as the solver takes them (pH already on the total scale).
+fn params(m: &Measured) -> MeasuredParams {
+    MeasuredParams {
+        ta: m.ta(),
+        dic: m.dic(),
+        ph_t: m.ph_t(),
+        pco2: m.pco2(),
+        fco2: m.fco2(),
+        co3: None,
+    }
+}
 
 fn ph_scale(s: PhScaleName) -> chem::scales::PhScale {
     use chem::scales::PhScale;
@@ -142,7 +127,12 @@ fn solve_one(
         Finding::new(Severity::Warning, kind, file, source.clone(), line, message).with_help(help)
     };
     let ta_est = ta_model.map(|m| m.intercept + m.slope * s.salinity);
-    let Some((pair, a, b, estimated)) = choose_pair(&s.measured, ta_est) else {
+    let mp = params(&s.measured);
+    let opts = Options {
+        estimated_ta: ta_est,
+    };
+    let chosen = measured::choose_pair(&mp, &opts).and_then(|(p, e)| Some((site_pair(p)?, e)));
+    let Some((pair, estimated)) = chosen else {
         let help = if s.measured.count() == 1 && s.measured.ta().is_none() {
             "a second carbonate quantity is needed; for sensor series, bottle samples with TA and salinity let the TA–salinity relationship supply TA"
         } else {
@@ -183,114 +173,86 @@ fn solve_one(
     for w in methods.range_warnings(&cond) {
         found.push(warn(FindingKind::MethodRange, format!("{w}; row kept"), "results outside a constant set's fitted range are less certain; consider another [chemistry] carbonic_acid set"));
     }
-    match chem::solve_pair(a, b, &k) {
-        Ok(st) => {
+    match measured::solve_measured(&mp, &k, &opts) {
+        Ok(sol) => {
             s.pair = Some(pair);
-            s.ta_estimated = estimated;
-            if s.measured.count() >= 3 {
-                consistency(s, &st, pair, &mut found, file);
+            s.ta_estimated = sol.ta_estimated;
+            if let Some(f) = inconsistency(s, pair, &sol.misfits, file) {
+                s.flags.insert(RowFlags::INCONSISTENT);
+                found.push(f);
             }
-            s.state = Some(st);
+            s.state = Some(sol.state);
         }
-        Err(e) => {
+        Err(MeasuredError::Solve { error, .. }) => {
             found.push(warn(
                 FindingKind::SolveFailed,
-                format!("the carbonate system could not be solved from {}: {e}; row kept without a carbonate state", pair.label()),
+                format!("the carbonate system could not be solved from {}: {error}; row kept without a carbonate state", pair.label()),
                 "check the measured values and their units",
+            ));
+        }
+        Err(e @ MeasuredError::NoPair { .. }) => {
+            // choose_pair found a pair above, so the solver does too; kept for safety.
+            found.push(warn(
+                FindingKind::NoPair,
+                format!("{e}; row kept for temperature and salinity only"),
+                "two of TA, DIC, pH, pCO2/fCO2 are needed (pCO2 with fCO2 is not a pair)",
             ));
         }
     }
     found
 }
 
-fn consistency(
-    s: &mut Sample,
-    st: &CarbonateState,
-    pair: Pair,
-    found: &mut Vec<Finding>,
-    file: usize,
-) {
-    let m = s.measured;
-    let in_pair = |q: &str| match pair {
-        Pair::TaDic => q == "ta" || q == "dic",
-        Pair::TaPh => q == "ta" || q == "ph",
-        Pair::TaPco2 | Pair::TaFco2 => q == "ta" || q == "co2",
-        Pair::DicPh => q == "dic" || q == "ph",
-        Pair::DicPco2 | Pair::DicFco2 => q == "dic" || q == "co2",
-        Pair::PhPco2 | Pair::PhFco2 => q == "ph" || q == "co2",
-    };
-    let mut misfits = Vec::new();
+/// One warning for a row whose further measured quantities disagree with its state beyond
+/// the solver's tolerances, with the measured and calculated values as typed values.
+fn inconsistency(s: &Sample, pair: Pair, misfits: &[Misfit], file: usize) -> Option<Finding> {
+    let mut texts = Vec::new();
     let mut values = Vec::new();
-    if let (Some(v), false) = (m.ta(), in_pair("ta"))
-        && (v - st.ta).abs() > TOL_TA_DIC_UMOL_KG
-    {
-        values.push(Value::new("ta_measured", v, "µmol/kg"));
-        values.push(Value::new("ta_calculated", st.ta, "µmol/kg"));
-        misfits.push(format!(
-            "TA measured {v:.1} vs calculated {:.1} µmol/kg (tolerance {TOL_TA_DIC_UMOL_KG})",
-            st.ta
-        ));
-    }
-    if let (Some(v), false) = (m.dic(), in_pair("dic"))
-        && (v - st.dic).abs() > TOL_TA_DIC_UMOL_KG
-    {
-        values.push(Value::new("dic_measured", v, "µmol/kg"));
-        values.push(Value::new("dic_calculated", st.dic, "µmol/kg"));
-        misfits.push(format!(
-            "DIC measured {v:.1} vs calculated {:.1} µmol/kg (tolerance {TOL_TA_DIC_UMOL_KG})",
-            st.dic
-        ));
-    }
-    if let (Some(v), false) = (m.ph_t(), in_pair("ph"))
-        && (v - st.ph_t).abs() > TOL_PH
-    {
-        values.push(Value::new("ph_t_measured", v, ""));
-        values.push(Value::new("ph_t_calculated", st.ph_t, ""));
-        misfits.push(format!(
-            "pH_T measured {v:.3} vs calculated {:.3} (tolerance {TOL_PH})",
-            st.ph_t
-        ));
-    }
-    for (name, v, c) in [("pCO2", m.pco2(), st.pco2), ("fCO2", m.fco2(), st.fco2)] {
-        let Some(v) = v else { continue };
-        let used = match pair {
-            Pair::TaPco2 | Pair::DicPco2 | Pair::PhPco2 => name == "pCO2",
-            Pair::TaFco2 | Pair::DicFco2 | Pair::PhFco2 => name == "fCO2",
-            _ => false,
+    for m in misfits.iter().filter(|m| m.exceeds()) {
+        let (name, unit, measured_name, calculated_name, text) = match m.param {
+            Param::Ta => ("TA", "µmol/kg", "ta_measured", "ta_calculated", None),
+            Param::Dic => ("DIC", "µmol/kg", "dic_measured", "dic_calculated", None),
+            Param::PhT => ("pH_T", "", "ph_t_measured", "ph_t_calculated", None),
+            Param::Pco2 => ("pCO2", "µatm", "pco2_measured", "pco2_calculated", Some(())),
+            Param::Fco2 => ("fCO2", "µatm", "fco2_measured", "fco2_calculated", Some(())),
+            Param::Co3 => ("CO3", "µmol/kg", "co3_measured", "co3_calculated", Some(())),
         };
-        if !used && c > 0.0 && ((v - c) / c).abs() > TOL_CO2_FRACTION {
-            let (m_name, c_name) = if name == "pCO2" {
-                ("pco2_measured", "pco2_calculated")
-            } else {
-                ("fco2_measured", "fco2_calculated")
-            };
-            values.push(Value::new(m_name, v, "µatm"));
-            values.push(Value::new(c_name, c, "µatm"));
-            misfits.push(format!(
-                "{name} measured {v:.1} vs calculated {c:.1} µatm (tolerance {:.0} %)",
-                TOL_CO2_FRACTION * 100.0
-            ));
-        }
+        values.push(Value::new(measured_name, m.measured, unit));
+        values.push(Value::new(calculated_name, m.calculated, unit));
+        let (v, c) = (m.measured, m.calculated);
+        texts.push(match (m.param, text) {
+            (Param::PhT, _) => {
+                format!("{name} measured {v:.3} vs calculated {c:.3} (tolerance {TOL_PH})")
+            }
+            (_, Some(())) => format!(
+                "{name} measured {v:.1} vs calculated {c:.1} {unit} (tolerance {:.0} %)",
+                m.tolerance.limit * 100.0
+            ),
+            _ => format!(
+                "{name} measured {v:.1} vs calculated {c:.1} {unit} (tolerance {TOL_TA_DIC_UMOL_KG})"
+            ),
+        });
     }
-    if !misfits.is_empty() {
-        s.flags.insert(RowFlags::INCONSISTENT);
-        found.push(
-            Finding::new(
-                Severity::Warning,
-                FindingKind::Inconsistent,
-                file,
-                s.source_file.clone(),
-                s.line,
-                format!(
-                    "measured and calculated values disagree (solved from {}): {}; row kept",
-                    pair.label(),
-                    misfits.join("; ")
-                ),
-            )
-            .with_values(values)
-            .with_help("check calibration, units and pH scale of this row; the state uses the preferred pair"),
-        );
+    if texts.is_empty() {
+        return None;
     }
+    Some(
+        Finding::new(
+            Severity::Warning,
+            FindingKind::Inconsistent,
+            file,
+            s.source_file.clone(),
+            s.line,
+            format!(
+                "measured and calculated values disagree (solved from {}): {}; row kept",
+                pair.label(),
+                texts.join("; ")
+            ),
+        )
+        .with_values(values)
+        .with_help(
+            "check calibration, units and pH scale of this row; the state uses the preferred pair",
+        ),
+    )
 }
 
 #[cfg(test)]
@@ -299,25 +261,24 @@ mod tests {
     use crate::site::records::test_util::{sample, units};
     use crate::site::schema::{Co2Kind, ConcUnit};
 
-    /// The documented order of preference, including TA estimated from salinity ahead of the
-    /// poorly conditioned pH + pCO2 pair.
+    /// The site's pair labels follow the measured-pair solver's documented order of
+    /// preference (chem::measured), including TA estimated from salinity ahead of the poorly
+    /// conditioned pH + pCO2 pair.
     #[test]
-    fn pair_preference() {
+    fn pair_labels_follow_the_solvers_order() {
+        let chosen = |m: &Measured, ta: Option<f64>| {
+            let opts = Options { estimated_ta: ta };
+            measured::choose_pair(&params(m), &opts).and_then(|(p, e)| Some((site_pair(p)?, e)))
+        };
         let m = Measured::new(Some(2300.0), Some(2000.0), Some(8.0), Some(400.0), None);
-        assert_eq!(choose_pair(&m, None).map(|p| p.0), Some(Pair::TaDic));
+        assert_eq!(chosen(&m, None), Some((Pair::TaDic, false)));
         let m = Measured::new(None, Some(2000.0), Some(8.0), Some(400.0), None);
-        assert_eq!(
-            choose_pair(&m, Some(2300.0)).map(|p| (p.0, p.3)),
-            Some((Pair::DicPh, false))
-        );
+        assert_eq!(chosen(&m, Some(2300.0)), Some((Pair::DicPh, false)));
         let m = Measured::new(None, None, Some(8.0), Some(400.0), None);
-        assert_eq!(
-            choose_pair(&m, Some(2300.0)).map(|p| (p.0, p.3)),
-            Some((Pair::TaPh, true))
-        );
-        assert_eq!(choose_pair(&m, None).map(|p| p.0), Some(Pair::PhPco2));
+        assert_eq!(chosen(&m, Some(2300.0)), Some((Pair::TaPh, true)));
+        assert_eq!(chosen(&m, None), Some((Pair::PhPco2, false)));
         let m = Measured::new(None, None, None, Some(400.0), Some(398.0));
-        assert!(choose_pair(&m, None).is_none());
+        assert_eq!(chosen(&m, None), None);
         assert_eq!(m.count(), 1);
     }
 
