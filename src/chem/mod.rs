@@ -2,7 +2,9 @@
 //!
 //! [`Constants::new`] evaluates every equilibrium constant of a [`MethodSet`] at in-situ
 //! temperature, salinity and pressure; [`solve_pair`] finds the full [`CarbonateState`] from
-//! any two measured parameters. Concentrations at this interface are µmol/kg-seawater,
+//! any two measured parameters; [`measured::solve_measured`] picks the preferred pair from
+//! any set of measured parameters and checks the others against the result. The choices a
+//! method set can make (K1/K2 fit, total boron, KF) are listed once, in [`catalogue`]. Concentrations at this interface are µmol/kg-seawater,
 //! pCO2 and fCO2 are µatm at in-situ temperature and one atmosphere total pressure, pH is on
 //! the total scale. Internally everything is mol/kg.
 //!
