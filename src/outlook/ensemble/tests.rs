@@ -444,9 +444,9 @@ fn bad_settings_give_clear_errors() {
             .contains("twice")
     );
     let mut s = settings(&site, 10);
-    s.years = vec![2120];
+    s.years = vec![2301];
     let e = run(&site, &s, &NoProgress).unwrap_err().to_string();
-    assert!(e.contains("2120") && e.contains("SSP1-1.9"), "{e}");
+    assert!(e.contains("2301") && e.contains("SSP1-1.9"), "{e}");
     let mut bad = site.clone();
     bad.records[2].pco2 = -5.0;
     let e = run(&bad, &settings(&bad, 10), &NoProgress)
