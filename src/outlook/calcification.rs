@@ -1,7 +1,8 @@
 //! Calcification–saturation relationships and the net-calcification outlook.
 //!
-//! Each relationship gives a relative factor `f = G(Omega, T) / G(Omega_b, T_b)` against the
-//! site's baseline (the mean Omega_ar and temperature of a season's records at sampling).
+//! Each relationship gives a relative factor `f = G(Omega, T) / G(Omega_b, T_b)` against a
+//! present-day state: in the ensemble, each member's own state at present (the same record
+//! draws, constants and temperature), so changes are paired member by member.
 //! Absolute net calcification is `baseline rate × f`. These are screening relationships: reef
 //! net ecosystem calcification is only weakly predicted by Omega_ar alone (Jones, Ridgwell &
 //! Hendy 2015, Biogeosciences 12:1339; Davis et al. 2021, Commun. Earth Environ. 2:105), and

@@ -92,6 +92,8 @@ pub fn quantity_name(q: Quantity) -> Cow<'static, str> {
         Quantity::Ta => "ta_umol_kg".into(),
         Quantity::Co3 => "co3_umol_kg".into(),
         Quantity::TempC => "temp_c".into(),
+        Quantity::OmegaArChange => "omega_ar_change".into(),
+        Quantity::PhTChange => "ph_t_change".into(),
         Quantity::CalcChangePct(id) => format!("calc_change_pct_{}", id.as_str()).into(),
         Quantity::NetCalc(id) => format!("net_calc_kg_m2_yr_{}", id.as_str()).into(),
     }
@@ -101,6 +103,7 @@ pub fn quantity_name(q: Quantity) -> Cow<'static, str> {
 pub fn quantity_decimals(q: Quantity) -> usize {
     match q {
         Quantity::OmegaAr | Quantity::OmegaCa | Quantity::PhT => 4,
+        Quantity::OmegaArChange | Quantity::PhTChange => 4,
         Quantity::Pco2 | Quantity::Dic | Quantity::Ta | Quantity::Co3 => 2,
         Quantity::TempC => 3,
         Quantity::CalcChangePct(_) => 2,
@@ -622,8 +625,9 @@ impl<'a> From<&'a Outlook> for JsonDoc<'a> {
             calcification: JsonCalc {
                 baseline_rate_kg_m2_yr: rounded(o.calcification_baseline_kg_m2_yr, 4),
                 baseline_rate_source: &o.calcification_baseline_source,
-                method: "relative factor G(Omega_ar, T)/G(baseline season mean Omega_ar, T) per \
-                         member; net calcification = baseline rate x factor; quantities \
+                method: "paired: relative factor G(Omega_ar, T in the year)/G(Omega_ar, T of the \
+                         same member at present: same record draws, constants and temperature); \
+                         net calcification = baseline rate x factor; quantities \
                          calc_change_pct_<id> and net_calc_kg_m2_yr_<id> in `quantiles`",
                 relationships: o
                     .relationships

@@ -48,7 +48,12 @@ pub enum Quantity {
     Co3,
     /// Temperature, °C.
     TempC,
-    /// Relative change of calcification against the group's baseline, percent.
+    /// Change of Omega_ar from the member's own present-day state (paired).
+    OmegaArChange,
+    /// Change of pH_T from the member's own present-day state (paired).
+    PhTChange,
+    /// Relative change of calcification against the member's own present-day state (paired),
+    /// percent.
     CalcChangePct(RelationshipId),
     /// Net calcification at the baseline rate times the relative factor, kg CaCO3 m⁻² yr⁻¹.
     NetCalc(RelationshipId),
@@ -67,6 +72,9 @@ impl Quantity {
         Quantity::TempC,
     ];
 
+    /// The paired changes of the carbonate state, in output order.
+    pub const PAIRED_CHANGES: [Quantity; 2] = [Quantity::OmegaArChange, Quantity::PhTChange];
+
     /// The quantities of one relationship, in output order.
     pub fn of_relationship(id: RelationshipId) -> [Quantity; 2] {
         [Quantity::CalcChangePct(id), Quantity::NetCalc(id)]
@@ -75,6 +83,7 @@ impl Quantity {
     /// Every quantity of a run with these relationships, in output order.
     pub fn all(relationships: &[Relationship]) -> Vec<Quantity> {
         let mut q = Quantity::STATE.to_vec();
+        q.extend(Quantity::PAIRED_CHANGES);
         for r in relationships {
             q.extend(Quantity::of_relationship(r.rel_id()));
         }

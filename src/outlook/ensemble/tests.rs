@@ -507,3 +507,50 @@ fn outputs_carry_units_and_fixed_decimals() {
         o.quantile_rows().len()
     );
 }
+
+/// Worked arithmetic: a member compared with itself. Records sampled in 2025 (the last
+/// observed year) under the steady pathway (the atmosphere held at the 2025 mean) with
+/// warming off are projected to exactly their present-day state, so every paired change
+/// (Omega_ar, pH_T, calcification per relationship) is zero with a zero-width 5-95 % band,
+/// with every source of uncertainty drawn.
+#[test]
+fn steady_atmosphere_without_warming_gives_zero_change() {
+    let mut site = site();
+    for r in &mut site.records {
+        r.sample_year = 2025;
+    }
+    let mut s = settings(&site, 200);
+    s.years = vec![2030, 2050, 2100];
+    s.warming = false;
+    s.pathways = vec![PathwaySpec::with_default_warming(
+        Pathway::builtin("steady").unwrap(),
+        &site.observed,
+    )];
+    let o = run(&site, &s, &NoProgress).unwrap();
+    let mut checked = 0;
+    for series in &o.series {
+        let is_change = matches!(
+            series.quantity,
+            Quantity::OmegaArChange | Quantity::PhTChange | Quantity::CalcChangePct(_)
+        );
+        if !is_change {
+            continue;
+        }
+        for pt in &series.points {
+            assert_eq!(pt.members, 200, "{:?}", series.quantity);
+            for v in pt.q.levels() {
+                assert_eq!(
+                    v, 0.0,
+                    "{:?} {:?} {}",
+                    series.quantity, series.group, pt.year
+                );
+            }
+            checked += 1;
+        }
+    }
+    // 3 groups x 3 years x (2 state changes + 3 relationships).
+    assert_eq!(checked, 45);
+    // The states themselves still spread (constants, measurement, record draws).
+    let om = series(&o, "steady", BASE_SCENARIO, "dry", Quantity::OmegaAr);
+    assert!(om[0].1[4] - om[0].1[0] > 0.1, "{om:?}");
+}
