@@ -155,10 +155,10 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
         )
         .map_err(|e| err("thresholds", e.to_string(), ""))?
     };
-    let (rate, rate_source) = site_file.baseline.net_calcification();
+    // An absolute rate only when the site measured one (never a global default).
     let calcification = CalcificationSettings::from_site(
-        Some(rate),
-        Some(&rate_source),
+        site_file.baseline.net_calcification_kg_m2_yr,
+        site_file.baseline.source.as_deref(),
         &site_file.calcification.relationships,
     )
     .map_err(|m| {
@@ -335,7 +335,7 @@ mod tests {
                 }
             )]
         );
-        assert_eq!(s.calcification.baseline_rate_kg_m2_yr, 1.5);
+        assert_eq!(s.calcification.site_rate, None);
         let o = run(&site, &s, &NoProgress).unwrap();
         // The scenario changes only the cool season.
         let local = o.pathway_id("local").unwrap();

@@ -326,7 +326,7 @@ fn run_task(prep: &Prepared<'_>, p: usize, g: &Group, progress: &dyn Progress) -
 fn summarise(prep: &Prepared<'_>, per_year: &[Vec<Option<Sample>>]) -> VariantSummary {
     let s = prep.s;
     let rels = &s.calcification.relationships;
-    let rate = s.calcification.baseline_rate_kg_m2_yr;
+    let rate = s.calcification.site_rate.as_ref().map(|r| r.kg_m2_yr);
     let mut scratch = Vec::new();
     let mut quantiles_of = |values: &mut dyn Iterator<Item = f64>| {
         scratch.clear();
@@ -371,24 +371,28 @@ fn summarise(prep: &Prepared<'_>, per_year: &[Vec<Option<Sample>>]) -> VariantSu
                     .iter()
                     .map(|x| factor(x).map_or(f64::NAN, |f| (f - 1.0) * 100.0)),
             );
-            let (qn, nn) =
-                quantiles_of(&mut ms.iter().map(|x| factor(x).map_or(f64::NAN, |f| rate * f)));
             change.push(QuantilePoint {
                 year,
                 q: qc,
                 members: nc,
                 outside_fit_pct: Some(outside),
             });
-            net.push(QuantilePoint {
-                year,
-                q: qn,
-                members: nn,
-                outside_fit_pct: Some(outside),
-            });
+            if let Some(rate) = rate {
+                let (qn, nn) =
+                    quantiles_of(&mut ms.iter().map(|x| factor(x).map_or(f64::NAN, |f| rate * f)));
+                net.push(QuantilePoint {
+                    year,
+                    q: qn,
+                    members: nn,
+                    outside_fit_pct: Some(outside),
+                });
+            }
         }
         let [qc, qn] = Quantity::of_relationship(rel.rel_id());
         series.push((qc, change));
-        series.push((qn, net));
+        if rate.is_some() {
+            series.push((qn, net));
+        }
     }
     let below = s
         .classes
