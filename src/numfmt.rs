@@ -84,6 +84,24 @@ pub fn fixed(v: f64, decimals: usize) -> Option<String> {
     push_fixed(&mut s, v, decimals).then_some(s)
 }
 
+/// `v` for a sentence: at most six decimals, trailing zeros dropped (`33.044000000000004` →
+/// `33.044`, `35.0` → `35`), so values converted or computed by one stage read cleanly where
+/// another shows them. NaN and infinities print as Rust writes them.
+pub fn tidy(v: f64) -> String {
+    match fixed(v, 6) {
+        Some(s) if s.contains('.') => {
+            let t = s.trim_end_matches('0').trim_end_matches('.');
+            if t == "-0" {
+                "0".to_string()
+            } else {
+                t.to_string()
+            }
+        }
+        Some(s) => s,
+        None => v.to_string(),
+    }
+}
+
 /// Append `n / 10^decimals` (`unit` = 10^decimals) with exactly `decimals` decimals, and a
 /// minus sign first when `negative`: the digits are made in a small array and appended at
 /// once.
@@ -125,6 +143,16 @@ fn push_scaled(buf: &mut String, n: u64, decimals: usize, unit: u64, negative: b
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Worked: 33.044000000000004 rounds to 33.044000 at six decimals, zeros dropped.
+    #[test]
+    fn tidy_drops_noise_and_zeros() {
+        assert_eq!(tidy(33.044_000_000_000_004), "33.044");
+        assert_eq!(tidy(35.0), "35");
+        assert_eq!(tidy(-0.000_000_1), "0");
+        assert_eq!(tidy(1.123_456_789), "1.123457");
+        assert_eq!(tidy(f64::NAN), "NaN");
+    }
     use proptest::prelude::*;
 
     fn f(v: f64, d: usize) -> String {

@@ -46,7 +46,8 @@ pub fn check(column: &str, value: f64) -> Result<(), String> {
             format!("from {lo}")
         };
         return Err(format!(
-            "{column} = {value}{unit} is outside the physical limit ({lower} to {hi}{unit})"
+            "{column} = {}{unit} is outside the physical limit ({lower} to {hi}{unit})",
+            crate::numfmt::tidy(value)
         ));
     }
     Ok(())

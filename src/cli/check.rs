@@ -503,15 +503,21 @@ pub fn summary_text(ls: &LoadedSite) -> String {
     o.push_str(&ta_salinity_text(ls));
     o.push_str(&diel_table(ls));
     let c = &ls.baseline.calcification;
-    let _ = writeln!(
-        o,
-        "\nNet calcification used as the present rate: {} kg CaCO3 m⁻² yr⁻¹ ({}){}",
-        c.net_calcification_kg_m2_yr,
-        c.source,
-        c.coral_cover_fraction
-            .map(|f| format!("; coral cover {:.0} %", f * 100.0))
-            .unwrap_or_default()
-    );
+    let cover = c
+        .coral_cover_fraction
+        .map(|f| format!("; coral cover {:.0} %", f * 100.0))
+        .unwrap_or_default();
+    let _ = match ls.site.baseline.net_calcification_kg_m2_yr {
+        Some(rate) => writeln!(
+            o,
+            "\nNet calcification measured at the site: {rate} kg CaCO₃ m⁻² yr⁻¹ ({}){cover}",
+            c.source
+        ),
+        None => writeln!(
+            o,
+            "\nNo measured net calcification: calcification is given as a relative change only{cover}"
+        ),
+    };
     let (e, wn, n) = (
         ls.count(Severity::Error),
         ls.count(Severity::Warning),

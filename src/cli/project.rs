@@ -32,16 +32,17 @@ use super::EXIT_INPUT;
 CSV columns (quantiles table): pathway, scenario, year, season, quantity, p05, p25, p50,
 p75, p95, members, outside_fit_pct. Quantities carry their unit in the name (omega_ar,
 omega_ca, ph_t, pco2_uatm, dic_umol_kg, ta_umol_kg, co3_umol_kg, temp_c,
-calc_change_pct_<id>, net_calc_kg_m2_yr_<id>). Screening-level estimates, not a permit
-determination.")]
+omega_ar_change, ph_t_change, calc_change_pct_<id>, and net_calc_kg_m2_yr_<id> only when the
+site file gives a measured rate). Changes are paired: each ensemble member against its own
+present-day state. Screening-level estimates, not a permit determination.")]
 pub struct ProjectArgs {
     /// The site description file (TOML).
     pub site: PathBuf,
     /// Output format: csv (one table) or json (all tables, settings and sources).
     #[arg(long, default_value = "csv")]
     pub format: OutputFormat,
-    /// CSV table: quantiles (default), crossings (first years below thresholds and of zero
-    /// net calcification) or thresholds (probability below each threshold per year).
+    /// CSV table: quantiles (default), crossings (first years below the habitat thresholds)
+    /// or thresholds (probability below each threshold per year).
     #[arg(long, default_value = "quantiles")]
     pub table: OutputTable,
     /// Output file (written atomically); `-` or absent for standard output.

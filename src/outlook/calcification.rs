@@ -1,7 +1,8 @@
 //! Calcification–saturation relationships and the net-calcification outlook.
 //!
-//! Each relationship gives a relative factor `f = G(Omega, T) / G(Omega_b, T_b)` against the
-//! site's baseline (the mean Omega_ar and temperature of a season's records at sampling).
+//! Each relationship gives a relative factor `f = G(Omega, T) / G(Omega_b, T_b)` against a
+//! present-day state: in the ensemble, each member's own state at present (the same record
+//! draws, constants and temperature), so changes are paired member by member.
 //! Absolute net calcification is `baseline rate × f`. These are screening relationships: reef
 //! net ecosystem calcification is only weakly predicted by Omega_ar alone (Jones, Ridgwell &
 //! Hendy 2015, Biogeosciences 12:1339; Davis et al. 2021, Commun. Earth Environ. 2:105), and
@@ -9,16 +10,19 @@
 
 use serde::Serialize;
 
-/// Global-average reef calcification, kg CaCO3 m⁻² yr⁻¹: ≈1.5 (1,500 g). Andersson, Bates &
-/// Mackenzie (2007), Aquat. Geochem. 13:237, citing earlier estimates. Status V (abstract).
-/// Used when the site file gives no baseline rate; a global average, not a site value. The
-/// value and its citation are defined once, with the site file's `[baseline]` section.
-pub const DEFAULT_BASELINE_RATE_KG_M2_YR: f64 =
-    crate::site::schema::DEFAULT_NET_CALCIFICATION_KG_M2_YR;
+/// What is said of the absolute rate when the site gives none: no global default is ever
+/// presented as the site's rate.
+pub const NO_SITE_RATE: &str = "none: the site file gives no measured net calcification rate, \
+     so only relative changes are given (no global average is used as the site's rate)";
 
-/// Source of [`DEFAULT_BASELINE_RATE_KG_M2_YR`].
-pub const DEFAULT_BASELINE_RATE_SOURCE: &str =
-    crate::site::schema::DEFAULT_NET_CALCIFICATION_SOURCE;
+/// A net calcification rate measured at the site, with its source.
+#[derive(Clone, Debug, PartialEq)]
+pub struct SiteRate {
+    /// kg CaCO3 m⁻² yr⁻¹.
+    pub kg_m2_yr: f64,
+    /// Where the number comes from (survey, paper).
+    pub source: String,
+}
 
 /// Chan & Connolly (2013) meta-analysis sensitivity: −15 % calcification per unit decrease in
 /// Omega_ar (95 % CI about −10 to −20 %). Global Change Biology 19:282–290. Status M (from
@@ -64,6 +68,9 @@ pub enum Form {
 pub struct Relationship {
     /// Short id used in quantity names, e.g. "chan2013".
     pub id: &'static str,
+    /// What the relationship's output is: a relative change in organism or community
+    /// calcification (never an absolute reef rate).
+    pub measures: &'static str,
     /// Name for readers: authors and year, e.g. "Chan & Connolly (2013)".
     pub name: &'static str,
     /// Citation.
@@ -132,6 +139,7 @@ pub fn builtin_relationships() -> Vec<Relationship> {
     vec![
         Relationship {
             id: "chan2013",
+            measures: "relative change in coral (organism) calcification",
             name: "Chan & Connolly (2013)",
             source: "Chan & Connolly (2013), Global Change Biology 19:282-290 (meta-analysis of \
                      coral experiments)",
@@ -148,6 +156,8 @@ pub fn builtin_relationships() -> Vec<Relationship> {
         },
         Relationship {
             id: "silverman2009",
+            measures: "relative change in reef community gross calcification (an inorganic \
+                       precipitation rate law applied to the community)",
             name: "Silverman et al. (2009)",
             source: "Silverman, Lazar, Cao, Caldeira & Erez (2009), GRL 36:L05606; rate law of \
                      Burton & Walter (1987), Geology 15:111",
@@ -164,6 +174,7 @@ pub fn builtin_relationships() -> Vec<Relationship> {
         },
         Relationship {
             id: "langdon2005",
+            measures: "relative change in coral and coral-community calcification",
             name: "Langdon & Atkinson (2005)",
             source: "Langdon & Atkinson (2005), JGR 110:C09S07",
             form_text: "G = k x (Omega_ar - 1), linear in Omega_ar - 1",
@@ -185,18 +196,16 @@ pub fn builtin_relationships() -> Vec<Relationship> {
 pub struct CalcificationSettings {
     /// Relationships to evaluate.
     pub relationships: Vec<Relationship>,
-    /// Baseline net calcification, kg CaCO3 m⁻² yr⁻¹.
-    pub baseline_rate_kg_m2_yr: f64,
-    /// Where the baseline rate comes from.
-    pub baseline_rate_source: String,
+    /// The site's measured net calcification rate, when it gives one; absolute rates are
+    /// reported only then.
+    pub site_rate: Option<SiteRate>,
 }
 
 impl Default for CalcificationSettings {
     fn default() -> Self {
         CalcificationSettings {
             relationships: builtin_relationships(),
-            baseline_rate_kg_m2_yr: DEFAULT_BASELINE_RATE_KG_M2_YR,
-            baseline_rate_source: DEFAULT_BASELINE_RATE_SOURCE.to_string(),
+            site_rate: None,
         }
     }
 }
@@ -216,8 +225,10 @@ impl CalcificationSettings {
                     "calcification baseline rate {r} kg CaCO3 m-2 yr-1 is outside 0-50"
                 ));
             }
-            s.baseline_rate_kg_m2_yr = r;
-            s.baseline_rate_source = rate_source.unwrap_or("site file").to_string();
+            s.site_rate = Some(SiteRate {
+                kg_m2_yr: r,
+                source: rate_source.unwrap_or("site file [baseline]").to_string(),
+            });
         }
         if !ids.is_empty() {
             let all = builtin_relationships();
@@ -332,7 +343,13 @@ mod tests {
     fn site_settings_validate() {
         let s = CalcificationSettings::from_site(Some(4.0), None, &["langdon2005".into()]).unwrap();
         assert_eq!(s.relationships.len(), 1);
-        assert_eq!(s.baseline_rate_kg_m2_yr, 4.0);
+        assert_eq!(s.site_rate.as_ref().map(|r| r.kg_m2_yr), Some(4.0));
+        assert_eq!(
+            CalcificationSettings::from_site(None, None, &[])
+                .unwrap()
+                .site_rate,
+            None
+        );
         let e = CalcificationSettings::from_site(None, None, &["x".into()]).unwrap_err();
         assert!(e.contains("chan2013"), "{e}");
         assert!(CalcificationSettings::from_site(Some(-1.0), None, &[]).is_err());

@@ -292,7 +292,7 @@ mod tests {
                 }
             )]
         );
-        assert_eq!(s.calcification.baseline_rate_kg_m2_yr, 1.5);
+        assert_eq!(s.calcification.site_rate, None);
         let o = run(&site, &s, &NoProgress).unwrap();
         // The scenario changes only the cool season.
         let local = o.pathway_id("local").unwrap();

@@ -158,7 +158,8 @@ pub struct ProjectionSettings {
 }
 
 impl ProjectionSettings {
-    /// Defaults for a site: the five SSPs with default warming (off), the default horizon after
+    /// Defaults for a site: the five SSPs with their warming applied (on, as in the site file's
+    /// `[projection] warming` default and the README), the default horizon after
     /// the latest sampling year, ratio mode, no scenario, 1,000 members with seed 1, the
     /// Guinotte et al. (2003) classes and the built-in calcification relationships.
     pub fn defaults_for(site: &SiteInput) -> ProjectionSettings {
@@ -173,7 +174,7 @@ impl ProjectionSettings {
                 .into_iter()
                 .map(|p| PathwaySpec::with_default_warming(p, &site.observed))
                 .collect(),
-            warming: false,
+            warming: true,
             years: horizon_years(start, DEFAULT_END_YEAR, DEFAULT_STEP_YEARS),
             mode: Disequilibrium::Ratio,
             scenarios: Vec::new(),

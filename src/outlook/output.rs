@@ -14,6 +14,7 @@ use std::str::FromStr;
 
 use serde::Serialize;
 
+use super::calcification::NO_SITE_RATE;
 use super::result::{
     Criterion, Crossing, CrossingKind, Note, Outlook, QuantilePoint, QuantileSeries, Quantity,
     ScenarioInfo, SettingsInfo,
@@ -26,6 +27,11 @@ pub const CAUTIONS: [&str; 4] = [
     "Warming, when on, uses global-mean SST changes (partly from memory) applied as a delta to the records; changes in variability are not modelled.",
     "Consult local permitting authorities and licensed professionals before acting on these numbers.",
 ];
+
+/// What the calcification outlook leaves out.
+pub const NOT_MODELLED: &str = "reef carbonate budget (gross calcification scaled by cover, \
+     minus bioerosion and sediment dissolution): not modelled, since no term's source is named \
+     here; no relationship has a dissolution term, so no net-zero calcification year is given";
 
 /// Output file format.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
@@ -61,7 +67,7 @@ pub enum OutputTable {
     /// The long-format quantile table (including calcification quantities).
     #[default]
     Quantiles,
-    /// First years below each habitat threshold and of zero net calcification.
+    /// First years below each habitat threshold.
     Crossings,
     /// Probability of lying below each habitat threshold per horizon year.
     Thresholds,
@@ -95,6 +101,8 @@ pub fn quantity_name(q: Quantity) -> Cow<'static, str> {
         Quantity::Ta => "ta_umol_kg".into(),
         Quantity::Co3 => "co3_umol_kg".into(),
         Quantity::TempC => "temp_c".into(),
+        Quantity::OmegaArChange => "omega_ar_change".into(),
+        Quantity::PhTChange => "ph_t_change".into(),
         Quantity::CalcChangePct(id) => format!("calc_change_pct_{}", id.as_str()).into(),
         Quantity::NetCalc(id) => format!("net_calc_kg_m2_yr_{}", id.as_str()).into(),
     }
@@ -104,6 +112,7 @@ pub fn quantity_name(q: Quantity) -> Cow<'static, str> {
 pub fn quantity_decimals(q: Quantity) -> usize {
     match q {
         Quantity::OmegaAr | Quantity::OmegaCa | Quantity::PhT => 4,
+        Quantity::OmegaArChange | Quantity::PhTChange => 4,
         Quantity::Pco2 | Quantity::Dic | Quantity::Ta | Quantity::Co3 => 2,
         Quantity::TempC => 3,
         Quantity::CalcChangePct(_) => 2,
@@ -121,11 +130,6 @@ pub fn criterion_text(c: &Criterion) -> (String, f64, &'static str) {
             format!("omega_ar below {class}"),
             *threshold_omega_ar,
             "omega_ar",
-        ),
-        Criterion::NetCalcificationZero(id) => (
-            format!("net calcification <= 0 ({})", id.as_str()),
-            0.0,
-            "kg_caco3_m2_yr",
         ),
     }
 }
@@ -376,11 +380,8 @@ pub fn fixed(v: f64, decimals: usize) -> String {
 
 /// `v` rounded to `decimals` for JSON (`None` for NaN/infinite; −0 becomes 0).
 pub fn rounded(v: f64, decimals: usize) -> Option<f64> {
-    if !v.is_finite() {
-        return None;
-    }
-    let f = 10f64.powi(decimals as i32);
-    let r = (v * f).round() / f;
+    // The same rounding as the CSV (`crate::numfmt`), so the two forms never disagree.
+    let r: f64 = crate::numfmt::fixed(v, decimals)?.parse().ok()?;
     Some(if r == 0.0 { 0.0 } else { r })
 }
 
@@ -498,15 +499,16 @@ struct JsonRelationship<'a> {
     fitted_temp_c_max: Option<f64>,
     scope: &'a str,
     status: &'a str,
+    measures: &'a str,
 }
 
 #[derive(Serialize)]
 struct JsonCalc<'a> {
     baseline_rate_kg_m2_yr: Option<f64>,
     baseline_rate_source: &'a str,
+    not_modelled: &'static str,
     method: &'static str,
     relationships: Vec<JsonRelationship<'a>>,
-    zero_years: Vec<JsonCrossing<'a>>,
 }
 
 fn json_crossing<'a>(o: &'a Outlook, r: &Crossing) -> JsonCrossing<'a> {
@@ -621,11 +623,17 @@ impl<'a> From<&'a Outlook> for JsonDoc<'a> {
                     .collect(),
             },
             calcification: JsonCalc {
-                baseline_rate_kg_m2_yr: rounded(o.calcification_baseline_kg_m2_yr, 4),
-                baseline_rate_source: &o.calcification_baseline_source,
-                method: "relative factor G(Omega_ar, T)/G(baseline season mean Omega_ar, T) per \
-                         member; net calcification = baseline rate x factor; quantities \
-                         calc_change_pct_<id> and net_calc_kg_m2_yr_<id> in `quantiles`",
+                baseline_rate_kg_m2_yr: o.site_rate.as_ref().and_then(|r| rounded(r.kg_m2_yr, 4)),
+                baseline_rate_source: o
+                    .site_rate
+                    .as_ref()
+                    .map_or(NO_SITE_RATE, |r| r.source.as_str()),
+                not_modelled: NOT_MODELLED,
+                method: "paired: relative factor G(Omega_ar, T in the year)/G(Omega_ar, T of the \
+                         same member at present: same record draws, constants and temperature); \
+                         quantities calc_change_pct_<id> in `quantiles`; net calcification \
+                         (net_calc_kg_m2_yr_<id>) = the site's measured rate x factor, only when \
+                         the site file gives a measured rate",
                 relationships: o
                     .relationships
                     .iter()
@@ -641,13 +649,8 @@ impl<'a> From<&'a Outlook> for JsonDoc<'a> {
                         fitted_temp_c_max: r.temp_range_c.and_then(|t| rounded(t.1, 2)),
                         scope: r.scope,
                         status: r.status,
+                        measures: r.measures,
                     })
-                    .collect(),
-                zero_years: o
-                    .crossings
-                    .iter()
-                    .filter(|r| r.criterion.kind() == CrossingKind::NetCalcificationZero)
-                    .map(|r| json_crossing(o, r))
                     .collect(),
             },
             notes: o.notes.iter().map(|n| n.to_string()).collect(),

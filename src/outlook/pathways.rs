@@ -1,130 +1,101 @@
 //! Atmospheric CO2 pathways: the five SSP concentration pathways, the observed record, a
-//! steady-state pathway and user-defined pathways.
+//! steady-state pathway and user-defined pathways, all at annual resolution.
 //!
-//! Every pathway is the observed record up to its last year ([`Observed::last_year`], 2024 for
-//! the built-in NOAA table) followed by the pathway's own values. Between table years values
-//! are interpolated linearly. Values are global annual means of dry-air mole fraction (ppm).
+//! The annual values come from one embedded table, `data/co2-annual.csv` (its sources are in
+//! `data/co2-annual.md` beside it): the NOAA GML global marine-surface annual means 1979–2025
+//! and the five CMIP6 SSP pathways of Meinshausen et al. (2020) for every year 1979–2300.
+//!
+//! Every pathway is the observed record up to its last year ([`Observed::last_year`], 2025 for
+//! the built-in NOAA table) followed by the pathway's own values, joined without a step: an SSP
+//! takes its table value minus the offset (SSP minus observed) of the last observed year, the
+//! offset fading linearly to zero over [`JOIN_FADE_YEARS`] years (common practice). Values are
+//! global annual means of dry-air mole fraction (ppm).
 
 use std::fmt;
+use std::sync::OnceLock;
 
-/// One row of the SSP concentration table: global annual-mean atmospheric CO2 (ppm) in the
-/// order SSP1-1.9, SSP1-2.6, SSP2-4.5, SSP3-7.0, SSP5-8.5.
-///
-/// Source: Meinshausen et al. (2020), "The shared socio-economic pathway (SSP) greenhouse gas
-/// concentrations and their extensions to 2500", Geosci. Model Dev. 13:3571–3605; values as
-/// carried in the CMIP6 / IPCC AR6 concentration files (read from the WRF model's
-/// `run/CAMtr_volume_mixing_ratio.SSP*` files, which label them "from IPCC AR6"). Status V
-/// (verified, fact sheet §5). Valid 2015–2100 (the files continue to 2500; not carried here).
+/// The embedded annual table (see the module documentation for its sources).
+const CO2_ANNUAL_CSV: &str = include_str!("data/co2-annual.csv");
+
+/// One row of the annual table: a year, the NOAA annual mean and its uncertainty where
+/// observed, and the five SSP values (SSP1-1.9, SSP1-2.6, SSP2-4.5, SSP3-7.0, SSP5-8.5).
 #[derive(Clone, Copy, Debug, PartialEq)]
-pub struct SspRow {
-    /// Calendar year of the annual mean.
+pub struct AnnualRow {
+    /// Calendar year of the annual means.
     pub year: i32,
-    /// ppm for SSP1-1.9, SSP1-2.6, SSP2-4.5, SSP3-7.0, SSP5-8.5.
-    pub ppm: [f64; 5],
+    /// NOAA GML global marine-surface annual mean, ppm, and its uncertainty, ppm (1979–2025).
+    pub noaa: Option<(f64, f64)>,
+    /// ppm for SSP1-1.9, SSP1-2.6, SSP2-4.5, SSP3-7.0, SSP5-8.5 (Meinshausen et al. 2020;
+    /// CMIP6 historical concentration up to 2014, identical in all five).
+    pub ssp: [f64; 5],
 }
 
-/// The SSP table (see [`SspRow`] for source and status): 2015, 2020 and every decade to 2100.
-pub const SSP_TABLE: [SspRow; 10] = [
-    SspRow {
-        year: 2015,
-        ppm: [399.949, 399.949, 399.949, 399.948, 399.949],
-    },
-    SspRow {
-        year: 2020,
-        ppm: [414.214, 414.232, 414.390, 415.155, 414.891],
-    },
-    SspRow {
-        year: 2030,
-        ppm: [434.324, 439.564, 444.143, 451.164, 451.515],
-    },
-    SspRow {
-        year: 2040,
-        ppm: [440.179, 458.201, 475.336, 493.221, 500.019],
-    },
-    SspRow {
-        year: 2050,
-        ppm: [437.632, 469.310, 506.875, 540.581, 562.784],
-    },
-    SspRow {
-        year: 2060,
-        ppm: [431.314, 473.750, 537.085, 593.230, 643.041],
-    },
-    SspRow {
-        year: 2070,
-        ppm: [423.877, 473.110, 563.925, 651.544, 743.662],
-    },
-    SspRow {
-        year: 2080,
-        ppm: [415.288, 467.390, 585.074, 716.008, 864.369],
-    },
-    SspRow {
-        year: 2090,
-        ppm: [405.255, 456.924, 597.735, 787.488, 998.321],
-    },
-    SspRow {
-        year: 2100,
-        ppm: [393.506, 445.625, 602.782, 867.191, 1135.210],
-    },
-];
+/// Parses the embedded table; an error names the line and field.
+fn parse_annual(text: &str) -> Result<Vec<AnnualRow>, String> {
+    let mut rows = Vec::new();
+    for (i, line) in text.lines().enumerate().skip(1) {
+        if line.trim().is_empty() {
+            continue;
+        }
+        let f: Vec<&str> = line.split(',').map(str::trim).collect();
+        if f.len() != 8 {
+            return Err(format!(
+                "co2-annual.csv line {}: {} fields, expected 8",
+                i + 1,
+                f.len()
+            ));
+        }
+        let num = |j: usize| -> Result<f64, String> {
+            let v = f.get(j).copied().unwrap_or("");
+            v.parse::<f64>()
+                .map_err(|_| format!("co2-annual.csv line {} field {}: \"{v}\"", i + 1, j + 1))
+        };
+        let year = f
+            .first()
+            .and_then(|y| y.parse::<i32>().ok())
+            .ok_or_else(|| format!("co2-annual.csv line {}: bad year", i + 1))?;
+        let noaa = match f.get(1).copied().unwrap_or("") {
+            "" => None,
+            _ => Some((num(1)?, num(2)?)),
+        };
+        rows.push(AnnualRow {
+            year,
+            noaa,
+            ssp: [num(3)?, num(4)?, num(5)?, num(6)?, num(7)?],
+        });
+    }
+    if rows.windows(2).any(|w| w[1].year != w[0].year + 1) {
+        return Err("co2-annual.csv: years are not consecutive".to_string());
+    }
+    Ok(rows)
+}
+
+/// The embedded annual table, parsed once. A unit test proves it parses; should it not, every
+/// look-up fails with the parse error instead of panicking.
+pub fn annual_table() -> Result<&'static [AnnualRow], PathwayError> {
+    static TABLE: OnceLock<Result<Vec<AnnualRow>, String>> = OnceLock::new();
+    match TABLE.get_or_init(|| parse_annual(CO2_ANNUAL_CSV)) {
+        Ok(rows) => Ok(rows.as_slice()),
+        Err(e) => Err(PathwayError::Invalid {
+            pathway: "built-in table".to_string(),
+            message: e.clone(),
+        }),
+    }
+}
+
+/// Years over which the offset between a pathway and the last observed annual mean fades
+/// linearly to zero (common practice for joining a scenario to observations without a step).
+pub const JOIN_FADE_YEARS: i32 = 10;
 
 /// Citation carried with every SSP pathway in the outputs.
-pub const SSP_SOURCE: &str = "Meinshausen et al. (2020), Geosci. Model Dev. 13:3571-3605; \
-     CMIP6/IPCC AR6 concentration files (as carried in WRF run/CAMtr_volume_mixing_ratio.SSP*); \
-     observed NOAA GML global marine-surface annual means to the last observed year";
-
-/// One observed annual mean: NOAA Global Monitoring Laboratory global marine-surface annual
-/// mean CO2 (ppm) with its stated uncertainty (ppm).
-///
-/// Source: NOAA GML `co2_annmean_gl` as carried in the public `datasets/co2-ppm` repository
-/// (`data/co2-annmean-gl.csv`). Status V (fact sheet §5). Years between rows (2016–2019) are
-/// interpolated linearly.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct ObservedRow {
-    /// Calendar year.
-    pub year: i32,
-    /// Annual mean, ppm.
-    pub ppm: f64,
-    /// Stated uncertainty of the annual mean, ppm.
-    pub uncertainty_ppm: f64,
-}
-
-/// The built-in observed record (see [`ObservedRow`]).
-pub const NOAA_OBSERVED: [ObservedRow; 6] = [
-    ObservedRow {
-        year: 2015,
-        ppm: 399.65,
-        uncertainty_ppm: 0.05,
-    },
-    ObservedRow {
-        year: 2020,
-        ppm: 412.44,
-        uncertainty_ppm: 0.07,
-    },
-    ObservedRow {
-        year: 2021,
-        ppm: 414.70,
-        uncertainty_ppm: 0.07,
-    },
-    ObservedRow {
-        year: 2022,
-        ppm: 417.08,
-        uncertainty_ppm: 0.08,
-    },
-    ObservedRow {
-        year: 2023,
-        ppm: 419.37,
-        uncertainty_ppm: 0.10,
-    },
-    ObservedRow {
-        year: 2024,
-        ppm: 422.80,
-        uncertainty_ppm: 0.10,
-    },
-];
+pub const SSP_SOURCE: &str = "Meinshausen et al. (2020), Geosci. Model Dev. 13:3571-3605, \
+     annual CMIP6 concentrations to 2300 (as carried in WRF run/CAMtr_volume_mixing_ratio.SSP*); \
+     observed NOAA GML global marine-surface annual means to the last observed year, the \
+     offset at that year fading linearly to zero over 10 years (common practice)";
 
 /// Citation of the observed record.
-pub const NOAA_SOURCE: &str =
-    "NOAA GML global marine-surface annual mean CO2 (co2_annmean_gl), 2015 and 2020-2024";
+pub const NOAA_SOURCE: &str = "NOAA GML global marine-surface annual mean CO2 (co2_annmean_gl), \
+     1979-2025 (datasets/co2-ppm data/co2-annmean-gl.csv at commit 146bdc6)";
 
 /// Plausible range for any user-given atmospheric CO2 value, ppm (a guard against unit slips,
 /// not a physical law: glacial minima are about 180 ppm and the SSP extensions peak near
@@ -205,7 +176,7 @@ impl Ssp {
         }
     }
 
-    /// Column of [`SSP_TABLE`].
+    /// Column of the SSP values in [`AnnualRow::ssp`].
     pub fn column(self) -> usize {
         match self {
             Ssp::Ssp119 => 0,
@@ -233,11 +204,12 @@ impl Ssp {
         }
     }
 
-    /// The table value interpolated linearly to `year` (2015–2100).
+    /// The table's annual value in `year` (1979–2300), before joining to the observations.
     pub fn table_ppm(self, year: i32) -> Option<f64> {
-        let col = self.column();
-        let pts: Vec<(i32, f64)> = SSP_TABLE.iter().map(|r| (r.year, r.ppm[col])).collect();
-        interpolate(&pts, year)
+        let table = annual_table().ok()?;
+        let first = table.first()?.year;
+        let row = table.get(usize::try_from(year.checked_sub(first)?).ok()?)?;
+        row.ssp.get(self.column()).copied()
     }
 }
 
@@ -269,8 +241,8 @@ fn interpolate(points: &[(i32, f64)], year: i32) -> Option<f64> {
 }
 
 /// The observed atmospheric record used for the historical part of every pathway and for the
-/// sampling-year atmosphere. Defaults to [`NOAA_OBSERVED`]; later annual means may be appended
-/// with [`Observed::extended`].
+/// sampling-year atmosphere. Defaults to the NOAA annual means of the embedded table; later
+/// annual means may be appended with [`Observed::extended`].
 #[derive(Clone, Debug, PartialEq)]
 pub struct Observed {
     points: Vec<(i32, f64)>,
@@ -284,10 +256,18 @@ impl Default for Observed {
 }
 
 impl Observed {
-    /// The built-in NOAA record.
+    /// The built-in NOAA record (1979–2025; empty if the embedded table could not be read,
+    /// which a unit test rules out).
     pub fn noaa() -> Self {
+        let points = annual_table()
+            .map(|t| {
+                t.iter()
+                    .filter_map(|r| r.noaa.map(|(ppm, _)| (r.year, ppm)))
+                    .collect()
+            })
+            .unwrap_or_default();
         Observed {
-            points: NOAA_OBSERVED.iter().map(|r| (r.year, r.ppm)).collect(),
+            points,
             source: NOAA_SOURCE.to_string(),
         }
     }
@@ -370,13 +350,27 @@ fn check_ppm(ppm: f64) -> Result<(), String> {
 /// What a pathway does after the observed record.
 #[derive(Clone, Debug, PartialEq)]
 pub enum PathwayKind {
-    /// A built-in SSP ([`SSP_TABLE`]).
+    /// A built-in SSP (the embedded annual table).
     Ssp(Ssp),
     /// The atmosphere held at the last observed annual mean.
     Steady,
     /// User points (year, ppm), strictly increasing years, interpolated linearly; between the
     /// last observation and the first point the value is interpolated from the observation.
     User(Vec<(i32, f64)>),
+}
+
+/// What is subtracted from an SSP's table value in `year` (after the last observed year) to
+/// join it to the observations without a step: the offset (SSP minus observed) of the last
+/// observed year, fading linearly to zero over [`JOIN_FADE_YEARS`] years, so the joined value
+/// equals the observation at the last observed year and the SSP value from ten years later.
+pub fn join_offset(ssp: Ssp, observed: &Observed, year: i32) -> f64 {
+    let last = observed.last_year();
+    let offset = match (ssp.table_ppm(last), observed.ppm(last)) {
+        (Some(a), Some(b)) => a - b,
+        _ => 0.0,
+    };
+    let fade = 1.0 - f64::from(year - last) / f64::from(JOIN_FADE_YEARS);
+    offset * fade.clamp(0.0, 1.0)
 }
 
 /// One CO2 pathway.
@@ -490,7 +484,7 @@ impl Pathway {
     /// The last year the pathway defines (`None`: unbounded).
     pub fn last_year(&self) -> Option<i32> {
         match &self.kind {
-            PathwayKind::Ssp(_) => SSP_TABLE.last().map(|r| r.year),
+            PathwayKind::Ssp(_) => annual_table().ok()?.last().map(|r| r.year),
             PathwayKind::Steady => None,
             PathwayKind::User(p) => p.last().map(|q| q.0),
         }
@@ -527,9 +521,13 @@ impl Pathway {
             message,
         };
         match &self.kind {
-            PathwayKind::Ssp(ssp) => ssp
-                .table_ppm(year)
-                .ok_or_else(|| out_of_range("the SSP table covers 2015-2100".to_string())),
+            PathwayKind::Ssp(ssp) => {
+                annual_table()?;
+                let value = ssp
+                    .table_ppm(year)
+                    .ok_or_else(|| out_of_range("the SSP table covers 1979-2300".to_string()))?;
+                Ok(value - join_offset(*ssp, observed, year))
+            }
             PathwayKind::Steady => Ok(observed.last_ppm()),
             PathwayKind::User(points) => {
                 // Splice: the last observation, then the user's points after it.
@@ -565,42 +563,78 @@ mod tests {
     // The Meinshausen et al. (2020) values at 2050 and 2100 are checked in
     // tests/projection_reference.rs.
 
-    /// Outside check: the observed NOAA annual means (fact sheet §5, V) for 2015 and 2020–2024;
-    /// 2017 interpolated between 2015 and 2020.
+    /// Outside check: the embedded table against the numbers of its source note
+    /// (`data/co2-annual.md`, copied from the shared reference): 322 rows 1979–2300, NOAA
+    /// 1979–2025, the five SSPs identical to 2014 (397.547 ppm, NOAA 397.34), and the SSP minus
+    /// NOAA offsets of 2025 printed there (+0.885, +2.034, +3.390, +6.707, +6.190 ppm).
     #[test]
-    fn observed_part_uses_noaa_record() {
+    fn embedded_table_matches_its_source_note() {
+        let t = annual_table().unwrap();
+        assert_eq!(t.len(), 322);
+        assert_eq!((t[0].year, t[321].year), (1979, 2300));
         let obs = Observed::noaa();
+        assert_eq!((obs.first_year(), obs.last_year()), (1979, 2025));
+        assert_eq!(obs.ppm(2014), Some(397.34));
+        assert_eq!(obs.ppm(2025), Some(425.64));
+        for ssp in Ssp::ALL {
+            assert_eq!(ssp.table_ppm(2014), Some(397.547));
+        }
+        for (ssp, offset) in Ssp::ALL.iter().zip([0.885, 2.034, 3.390, 6.707, 6.190]) {
+            let d = ssp.table_ppm(2025).unwrap() - 425.64;
+            assert!((d - offset).abs() < 1e-9, "{} {d}", ssp.name());
+        }
+    }
+
+    /// Check of the join (common practice, stated in the module documentation): the joined
+    /// pathway equals the NOAA means through the last observed year (2025) and the SSP table
+    /// from ten years after it (2035 on); in between, the 2025 offset fades linearly (2030:
+    /// half of it; offsets from `data/co2-annual.md`).
+    #[test]
+    fn joined_pathway_equals_noaa_then_ssp() {
+        let obs = Observed::noaa();
+        for p in Pathway::all_ssps() {
+            let PathwayKind::Ssp(ssp) = p.kind else {
+                unreachable!()
+            };
+            for y in 1979..=2025 {
+                assert_eq!(
+                    p.xco2_ppm(&obs, y).unwrap(),
+                    obs.ppm(y).unwrap(),
+                    "{} {y}",
+                    p.name
+                );
+            }
+            for y in 2035..=2300 {
+                assert_eq!(p.xco2_ppm(&obs, y).unwrap(), ssp.table_ppm(y).unwrap());
+            }
+        }
         let p = Pathway::builtin("SSP5-8.5").unwrap();
-        assert_eq!(p.xco2_ppm(&obs, 2015).unwrap(), 399.65);
-        assert_eq!(p.xco2_ppm(&obs, 2024).unwrap(), 422.80);
-        assert_eq!(p.xco2_ppm(&obs, 2022).unwrap(), 417.08);
-        let v2017 = p.xco2_ppm(&obs, 2017).unwrap();
-        assert!((v2017 - (399.65 + 0.4 * (412.44 - 399.65))).abs() < 1e-9);
-        // 2025: halfway between the table's 2020 and 2030 values.
-        let v2025 = p.xco2_ppm(&obs, 2025).unwrap();
-        assert!((v2025 - 0.5 * (414.891 + 451.515)).abs() < 1e-9);
-        assert!(p.xco2_ppm(&obs, 2014).is_err());
-        assert!(p.xco2_ppm(&obs, 2101).is_err());
+        let v2030 = p.xco2_ppm(&obs, 2030).unwrap();
+        let table_2030 = Ssp::Ssp585.table_ppm(2030).unwrap();
+        assert!((v2030 - (table_2030 - 0.5 * 6.190)).abs() < 1e-9, "{v2030}");
+        assert!(p.xco2_ppm(&obs, 1978).is_err());
+        assert!(p.xco2_ppm(&obs, 2301).is_err());
     }
 
     #[test]
     fn steady_holds_last_observation() {
         let obs = Observed::noaa();
         let p = Pathway::builtin("Steady").unwrap();
-        assert_eq!(p.xco2_ppm(&obs, 2090).unwrap(), 422.80);
-        assert_eq!(p.xco2_ppm(&obs, 2300).unwrap(), 422.80);
-        let obs2 = obs.extended(&[(2025, 425.5)], "test").unwrap();
-        assert_eq!(p.xco2_ppm(&obs2, 2080).unwrap(), 425.5);
-        assert!(obs.extended(&[(2023, 425.0)], "x").is_err());
-        assert!(obs.extended(&[(2026, 42.5)], "x").is_err());
+        assert_eq!(p.xco2_ppm(&obs, 2090).unwrap(), 425.64);
+        assert_eq!(p.xco2_ppm(&obs, 2300).unwrap(), 425.64);
+        let obs2 = obs.extended(&[(2026, 428.5)], "test").unwrap();
+        assert_eq!(p.xco2_ppm(&obs2, 2080).unwrap(), 428.5);
+        assert!(obs.extended(&[(2024, 425.0)], "x").is_err());
+        assert!(obs.extended(&[(2027, 42.5)], "x").is_err());
     }
 
     #[test]
     fn user_pathway_interpolates_and_validates() {
         let obs = Observed::noaa();
         let p = Pathway::user("local plan", &[(2030, 450.0), (2100, 500.0)]).unwrap();
+        // 2025 observed 425.64 ppm, then linear to the first point.
         let v2027 = p.xco2_ppm(&obs, 2027).unwrap();
-        assert!((v2027 - (422.80 + 0.5 * (450.0 - 422.80))).abs() < 1e-9);
+        assert!((v2027 - (425.64 + 0.4 * (450.0 - 425.64))).abs() < 1e-9);
         assert!((p.xco2_ppm(&obs, 2065).unwrap() - 475.0).abs() < 1e-9);
         let e = p.xco2_ppm(&obs, 2101).unwrap_err().to_string();
         assert!(e.contains("local plan") && e.contains("2101"), "{e}");
@@ -639,9 +673,9 @@ mod tests {
             /// Interpolated user values stay between the neighbouring points.
             #[test]
             fn user_values_are_bounded_by_points(
-                a in 150.0f64..3000.0, b in 150.0f64..3000.0, y in 2025i32..=2100
+                a in 150.0f64..3000.0, b in 150.0f64..3000.0, y in 2026i32..=2100
             ) {
-                let p = Pathway::user("u", &[(2025, a), (2100, b)]).unwrap();
+                let p = Pathway::user("u", &[(2026, a), (2100, b)]).unwrap();
                 let v = p.xco2_ppm(&Observed::noaa(), y).unwrap();
                 prop_assert!(v >= a.min(b) - 1e-9 && v <= a.max(b) + 1e-9);
             }

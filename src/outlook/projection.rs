@@ -532,6 +532,24 @@ mod tests {
         assert!(pt.temp_c > cold.temp_c);
     }
 
+    /// Check: a record sampled in 2010 takes the NOAA 2010 global marine-surface annual mean,
+    /// 388.75 ppm (`data/co2-annual.csv`, NOAA GML co2_annmean_gl), as its sampling-year
+    /// atmosphere; in ratio mode its seawater pCO2 in 2050 scales with the air pCO2 from there.
+    #[test]
+    fn record_sampled_in_2010_uses_the_noaa_2010_mean() {
+        let obs = Observed::noaa();
+        let m = MethodSet::default();
+        let p = Pathway::builtin("SSP2-4.5").unwrap();
+        let rec = record(2290.0, 27.5, 35.1, 400.0, 2010);
+        let at = |y| project_record(&rec, &p, &obs, None, &m, Disequilibrium::Ratio, None, y);
+        let pt = at(2010).unwrap();
+        assert_eq!(pt.xco2_ppm, 388.75);
+        assert!((pt.pco2_sea - 400.0).abs() < 1e-9);
+        let air_2010 = pco2_air_uatm(388.75, 27.5, 35.1);
+        let pt = at(2050).unwrap();
+        assert!((pt.pco2_sea / 400.0 - pt.pco2_air / air_2010).abs() < 1e-12);
+    }
+
     #[test]
     fn bad_records_and_years_give_named_errors() {
         let obs = Observed::noaa();
@@ -543,14 +561,14 @@ mod tests {
             .unwrap_err()
             .to_string();
         assert!(e.contains("test record") && e.contains("ta"), "{e}");
-        let rec = record(2290.0, 27.5, 35.1, 430.0, 2010);
+        let rec = record(2290.0, 27.5, 35.1, 430.0, 1975);
         let e = project_record(&rec, &p, &obs, None, &m, Disequilibrium::Ratio, None, 2050)
             .unwrap_err()
             .to_string();
-        assert!(e.contains("2010"), "{e}");
+        assert!(e.contains("1975") && e.contains("1979"), "{e}");
         let rec = record(2290.0, 27.5, 35.1, 430.0, 2024);
         assert!(
-            project_record(&rec, &p, &obs, None, &m, Disequilibrium::Ratio, None, 2150).is_err()
+            project_record(&rec, &p, &obs, None, &m, Disequilibrium::Ratio, None, 2301).is_err()
         );
         // Additive mode under a falling atmosphere with a strongly undersaturated record.
         let low = record(2290.0, 27.5, 35.1, 15.0, 2024);

@@ -48,9 +48,15 @@ pub enum Quantity {
     Co3,
     /// Temperature, °C.
     TempC,
-    /// Relative change of calcification against the group's baseline, percent.
+    /// Change of Omega_ar from the member's own present-day state (paired).
+    OmegaArChange,
+    /// Change of pH_T from the member's own present-day state (paired).
+    PhTChange,
+    /// Relative change of calcification against the member's own present-day state (paired),
+    /// percent.
     CalcChangePct(RelationshipId),
-    /// Net calcification at the baseline rate times the relative factor, kg CaCO3 m⁻² yr⁻¹.
+    /// Net calcification: the site's measured rate times the relative factor, kg CaCO3 m⁻²
+    /// yr⁻¹ (only when the site gives a measured rate).
     NetCalc(RelationshipId),
 }
 
@@ -67,16 +73,24 @@ impl Quantity {
         Quantity::TempC,
     ];
 
+    /// The paired changes of the carbonate state, in output order.
+    pub const PAIRED_CHANGES: [Quantity; 2] = [Quantity::OmegaArChange, Quantity::PhTChange];
+
     /// The quantities of one relationship, in output order.
     pub fn of_relationship(id: RelationshipId) -> [Quantity; 2] {
         [Quantity::CalcChangePct(id), Quantity::NetCalc(id)]
     }
 
-    /// Every quantity of a run with these relationships, in output order.
-    pub fn all(relationships: &[Relationship]) -> Vec<Quantity> {
+    /// Every quantity of a run with these relationships, in output order (net calcification
+    /// only `with_site_rate`).
+    pub fn all(relationships: &[Relationship], with_site_rate: bool) -> Vec<Quantity> {
         let mut q = Quantity::STATE.to_vec();
+        q.extend(Quantity::PAIRED_CHANGES);
         for r in relationships {
-            q.extend(Quantity::of_relationship(r.rel_id()));
+            q.push(Quantity::CalcChangePct(r.rel_id()));
+            if with_site_rate {
+                q.push(Quantity::NetCalc(r.rel_id()));
+            }
         }
         q
     }
@@ -190,8 +204,6 @@ pub enum CrossingGroup {
 pub enum CrossingKind {
     /// Omega_ar falls strictly below a habitat threshold.
     OmegaArBelow,
-    /// Net calcification reaches zero or less.
-    NetCalcificationZero,
 }
 
 /// The criterion of a crossing.
@@ -203,8 +215,6 @@ pub enum Criterion {
         class: String,
         threshold_omega_ar: f64,
     },
-    /// Net calcification of a relationship at or below zero.
-    NetCalcificationZero(RelationshipId),
 }
 
 impl Criterion {
@@ -212,7 +222,6 @@ impl Criterion {
     pub fn kind(&self) -> CrossingKind {
         match self {
             Criterion::OmegaArBelow { .. } => CrossingKind::OmegaArBelow,
-            Criterion::NetCalcificationZero(_) => CrossingKind::NetCalcificationZero,
         }
     }
 }
@@ -365,8 +374,8 @@ pub struct Outlook {
     pub probabilities: Vec<BelowProbability>,
     pub classes: HabitatClasses,
     pub relationships: Vec<Relationship>,
-    pub calcification_baseline_kg_m2_yr: f64,
-    pub calcification_baseline_source: String,
+    /// The site's measured calcification rate, when it gives one.
+    pub site_rate: Option<super::calcification::SiteRate>,
     /// Warnings and notes (range flags, failed members, skipped seasons).
     pub notes: Vec<Note>,
     /// The thermal-stress outlook, when the site has a temperature record

@@ -302,8 +302,12 @@ fn check_calcification(e: &mut Errors<'_>) -> Option<CalcificationSettings> {
     if !ok {
         return None;
     }
-    let (rate, rate_source) = site_file.baseline.net_calcification();
-    match CalcificationSettings::from_site(Some(rate), Some(&rate_source), ids) {
+    // An absolute rate only when the site measured one (never a global default).
+    match CalcificationSettings::from_site(
+        site_file.baseline.net_calcification_kg_m2_yr,
+        site_file.baseline.source.as_deref(),
+        ids,
+    ) {
         Ok(s) => Some(s),
         Err(m) => {
             e.push("calcification", m, "");

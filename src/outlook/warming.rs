@@ -1,6 +1,11 @@
 //! Optional sea-surface warming per pathway, used when warming is turned on: the record's
 //! temperature is raised by the pathway's SST change between the sampling year and the
 //! horizon year (a delta method that leaves seasonal and short-term variability unchanged).
+//!
+//! For a pathway with annual CO2 over 1995–2100 the change follows the pathway's own shape:
+//! it is scaled with ln CO2 of that pathway (the logarithmic CO2 forcing; common practice for
+//! a screening pattern, not a climate model), anchored so that its 1995–2014 mean is zero and
+//! its 2081–2100 mean equals the AR6 global-mean SST change. Other pathways use a linear ramp.
 
 use super::pathways::{Observed, Pathway, PathwayKind, Ssp};
 
@@ -38,25 +43,89 @@ pub struct Warming {
     pub delta_c: f64,
     /// Where `delta_c` came from.
     pub origin: WarmingOrigin,
+    /// The pathway's shape, when its annual CO2 covers 1995–2100.
+    shape: Option<LnCo2Shape>,
 }
+
+/// `(ln C(y) - R) / (A - R)`: R the mean of ln C over 1995–2014, A over 2081–2100.
+#[derive(Clone, Debug, PartialEq)]
+struct LnCo2Shape {
+    first_year: i32,
+    /// Shape value of every year from `first_year`.
+    values: Vec<f64>,
+}
+
+impl LnCo2Shape {
+    /// The shape of `pathway` over the years its annual CO2 is defined (from the first
+    /// observed year to 2300 or the pathway's last year); `None` when 1995–2100 is not covered
+    /// or CO2 does not rise between the reference periods.
+    fn of(pathway: &Pathway, observed: &Observed) -> Option<LnCo2Shape> {
+        let first_year = observed.first_year().max(1850);
+        let last_year = pathway.last_year().unwrap_or(2300).min(2300);
+        if first_year > 1995 || last_year < 2100 {
+            return None;
+        }
+        let ln: Vec<f64> = (first_year..=last_year)
+            .map(|y| pathway.xco2_ppm(observed, y).map(f64::ln))
+            .collect::<Result<_, _>>()
+            .ok()?;
+        let mean = |a: i32, b: i32| -> Option<f64> {
+            let lo = usize::try_from(a - first_year).ok()?;
+            let hi = usize::try_from(b - first_year).ok()?;
+            let part = ln.get(lo..=hi)?;
+            Some(part.iter().sum::<f64>() / part.len() as f64)
+        };
+        let reference = mean(REFERENCE_PERIOD.0, REFERENCE_PERIOD.1)?;
+        let anchor = mean(ANCHOR_PERIOD.0, ANCHOR_PERIOD.1)?;
+        if !(anchor - reference).is_finite() || anchor - reference <= 1e-9 {
+            return None;
+        }
+        Some(LnCo2Shape {
+            first_year,
+            values: ln
+                .iter()
+                .map(|l| (l - reference) / (anchor - reference))
+                .collect(),
+        })
+    }
+
+    /// The shape in `year` (held at its first and last values outside the covered years).
+    fn at(&self, year: i32) -> f64 {
+        let i = usize::try_from(year - self.first_year).unwrap_or(0);
+        self.values
+            .get(i)
+            .or(self.values.last())
+            .copied()
+            .unwrap_or(0.0)
+    }
+}
+
+/// The AR6 reference period, whose mean change is zero.
+pub const REFERENCE_PERIOD: (i32, i32) = (1995, 2014);
+/// The AR6 assessment period, whose mean change is `delta_c`.
+pub const ANCHOR_PERIOD: (i32, i32) = (2081, 2100);
 
 impl Warming {
     /// The default for a pathway. SSP1-2.6 and SSP5-8.5 take the AR6 values; every other
     /// pathway (SSP1-1.9, SSP2-4.5, SSP3-7.0, steady, user) takes a value interpolated linearly
     /// between them by its 2100 CO2 (or its last value before 2100), clamped to 0–5 °C.
     pub fn default_for(pathway: &Pathway, observed: &Observed) -> Warming {
+        let shape = LnCo2Shape::of(pathway, observed);
         match pathway.kind {
             PathwayKind::Ssp(Ssp::Ssp126) => Warming {
                 delta_c: SST_CHANGE_SSP126_C,
                 origin: WarmingOrigin::Ar6FromMemory,
+                shape,
             },
             PathwayKind::Ssp(Ssp::Ssp585) => Warming {
                 delta_c: SST_CHANGE_SSP585_C,
                 origin: WarmingOrigin::Ar6FromMemory,
+                shape,
             },
             _ => Warming {
                 delta_c: interpolate_by_co2(pathway.ppm_2100(observed)),
                 origin: WarmingOrigin::InterpolatedByCo2,
+                shape,
             },
         }
     }
@@ -66,13 +135,17 @@ impl Warming {
         Warming {
             delta_c,
             origin: WarmingOrigin::User,
+            shape: None,
         }
     }
 
-    /// SST change in `year` relative to the 1995–2014 mean, °C: 0 up to 2005, then a linear
-    /// ramp reaching `delta_c` at 2090 and continuing at the same rate afterwards (so the
-    /// 2081–2100 mean equals `delta_c`).
+    /// SST change in `year` relative to the 1995–2014 mean, °C: `delta_c` times the pathway's
+    /// ln CO2 shape (see the module documentation); without a shape, 0 up to 2005, then a
+    /// linear ramp reaching `delta_c` at 2090 and continuing at the same rate afterwards.
     pub fn sst_change_c(&self, year: i32) -> f64 {
+        if let Some(shape) = &self.shape {
+            return self.delta_c * shape.at(year);
+        }
         if year <= RAMP_START_YEAR {
             return 0.0;
         }
@@ -87,18 +160,28 @@ impl Warming {
     }
 
     /// Source text for outputs.
-    pub fn source(&self) -> &'static str {
+    pub fn source(&self) -> String {
+        let shape = if self.shape.is_some() {
+            "; scaled with ln CO2 of the pathway, zero over 1995-2014 and the stated change over \
+             2081-2100 (common practice)"
+        } else {
+            "; linear ramp 2005-2090"
+        };
+        format!("{}{shape}", self.origin_text())
+    }
+
+    fn origin_text(&self) -> &'static str {
         match self.origin {
             WarmingOrigin::Ar6FromMemory => {
                 "IPCC AR6 WG1 Ch. 9 (Fox-Kemper et al. 2021) global-mean SST change 2081-2100 vs \
-                 1995-2014 (from memory, medium confidence); linear ramp 2005-2090"
+                 1995-2014 (from memory, medium confidence)"
             }
             WarmingOrigin::InterpolatedByCo2 => {
                 "interpolated by 2100 CO2 between the AR6 SSP1-2.6 (+0.86 C) and SSP5-8.5 \
                  (+2.89 C) global-mean SST changes (both from memory); our rule, not a published \
-                 value; linear ramp 2005-2090"
+                 value"
             }
-            WarmingOrigin::User => "user value from the site file; linear ramp 2005-2090",
+            WarmingOrigin::User => "user value from the site file",
         }
     }
 }
@@ -132,6 +215,34 @@ mod tests {
         assert!((mean - 2.0 * 85.5 / 85.0).abs() < 1e-12);
         assert!((w.change_between(2024, 2024)).abs() < 1e-12);
         assert!(w.change_between(2024, 2050) > 0.0);
+    }
+
+    /// Check by construction of the stated method (the AR6 anchoring, from memory): the
+    /// shaped change averages to zero over 1995-2014 and to the AR6 value over 2081-2100, and
+    /// it follows the pathway: under SSP1-1.9, whose CO2 peaks near 2040 and then falls, the
+    /// warming peaks and falls too; under the steady pathway it stops after the last
+    /// observed year.
+    #[test]
+    fn shaped_warming_is_anchored_and_follows_the_pathway() {
+        let obs = Observed::noaa();
+        let mean = |w: &Warming, a: i32, b: i32| {
+            (a..=b).map(|y| w.sst_change_c(y)).sum::<f64>() / f64::from(b - a + 1)
+        };
+        let p = Pathway::builtin("SSP5-8.5").unwrap();
+        let w = Warming::default_for(&p, &obs);
+        assert!(w.shape.is_some());
+        assert!(mean(&w, 1995, 2014).abs() < 1e-12);
+        assert!((mean(&w, 2081, 2100) - 2.89).abs() < 1e-12);
+        let p = Pathway::builtin("SSP1-1.9").unwrap();
+        let w = Warming::default_for(&p, &obs);
+        let peak = (2025..=2100)
+            .max_by(|a, b| w.sst_change_c(*a).total_cmp(&w.sst_change_c(*b)))
+            .unwrap();
+        assert!((2030..=2060).contains(&peak), "{peak}");
+        assert!(w.sst_change_c(2100) < w.sst_change_c(peak));
+        let w = Warming::default_for(&Pathway::builtin("steady").unwrap(), &obs);
+        assert!(w.change_between(2025, 2100).abs() < 1e-12);
+        assert!(w.source().contains("ln CO2"));
     }
 
     #[test]

@@ -301,13 +301,9 @@ fn grouped_findings(loaded: &LoadedSite) -> Vec<QcFinding> {
                 .collect();
             let location = (!places.is_empty()).then(|| places.join("; "));
             let message = if g.count > 1 {
-                format!(
-                    "{} (the first of {} rows)",
-                    tidy_numbers(&g.message),
-                    g.count
-                )
+                format!("{} (the first of {} rows)", g.message.clone(), g.count)
             } else {
-                tidy_numbers(&g.message)
+                g.message.clone()
             };
             QcFinding {
                 level: g.level,
@@ -317,46 +313,6 @@ fn grouped_findings(loaded: &LoadedSite) -> Vec<QcFinding> {
             }
         })
         .collect()
-}
-
-/// Rounds numbers written with more than six decimals (floating-point noise such as
-/// "33.044000000000004" in messages from other stages) to at most six, trailing zeros dropped.
-/// Other text is unchanged.
-fn tidy_numbers(text: &str) -> String {
-    let mut out = String::with_capacity(text.len());
-    let chars: Vec<char> = text.chars().collect();
-    let mut i = 0;
-    while i < chars.len() {
-        let c = chars[i];
-        if c.is_ascii_digit() && (i == 0 || !chars[i - 1].is_ascii_alphanumeric()) {
-            let start = i;
-            while i < chars.len() && chars[i].is_ascii_digit() {
-                i += 1;
-            }
-            if i + 1 < chars.len() && chars[i] == '.' && chars[i + 1].is_ascii_digit() {
-                let dot = i;
-                i += 1;
-                while i < chars.len() && chars[i].is_ascii_digit() {
-                    i += 1;
-                }
-                let token: String = chars[start..i].iter().collect();
-                if i - dot - 1 > 6
-                    && let Ok(v) = token.parse::<f64>()
-                {
-                    let s = format!("{v:.6}");
-                    out.push_str(s.trim_end_matches('0').trim_end_matches('.'));
-                } else {
-                    out.push_str(&token);
-                }
-            } else {
-                out.extend(&chars[start..i]);
-            }
-            continue;
-        }
-        out.push(c);
-        i += 1;
-    }
-    out
 }
 
 /// "12, 40–52, 60" from sorted or unsorted line numbers; at most six runs, then "…".
@@ -671,18 +627,5 @@ mod tests {
         assert_eq!(line_ranges(&[5, 3, 4, 9]), "lines 3–5, line 9");
         let many: Vec<usize> = (0..20).map(|i| i * 3).collect();
         assert!(line_ranges(&many).ends_with("and 14 more runs"));
-    }
-
-    #[test]
-    fn floating_point_noise_is_rounded_away() {
-        assert_eq!(
-            tidy_numbers("temp_c 33.044000000000004 °C is outside 9–33 °C (station LG1, 2.5 m)"),
-            "temp_c 33.044 °C is outside 9–33 °C (station LG1, 2.5 m)"
-        );
-        assert_eq!(
-            tidy_numbers("x 1.123456789 and v2.0000001"),
-            "x 1.123457 and v2.0000001"
-        );
-        assert_eq!(tidy_numbers("lines 3–5, 9."), "lines 3–5, 9.");
     }
 }

@@ -419,11 +419,10 @@ impl<'a> Run<'a> {
         }
         if self.site.baseline.net_calcification_kg_m2_yr.is_none() {
             diags.push(
-                Diagnostic::note(format!(
-                    "no net calcification given in [baseline]; using {} kg CaCO3 m⁻² yr⁻¹ ({})",
-                    schema::DEFAULT_NET_CALCIFICATION_KG_M2_YR,
-                    schema::DEFAULT_NET_CALCIFICATION_SOURCE
-                ))
+                Diagnostic::note(
+                    "no measured net calcification in [baseline]: the outlook gives calcification as a relative change only, not as a rate for this site",
+                )
+                .with_help("give net_calcification_kg_m2_yr with its source (e.g. an alkalinity-anomaly or census study of the site) for absolute rates")
                 .with_file(self.path)
                 .with_field("baseline.net_calcification_kg_m2_yr"),
             );

@@ -5,7 +5,7 @@ use super::super::result::{
     PathwayId, PathwayInfo, QuantileSeries, Quantiles, Quantity, ScenarioId, ScenarioInfo,
     SettingsInfo,
 };
-use super::super::thresholds::{first_year_at_or_below, first_year_below};
+use super::super::thresholds::first_year_below;
 use super::AGGREGATE_LABEL;
 use super::prepare::Prepared;
 use super::run::{TaskOut, VariantSummary};
@@ -91,14 +91,16 @@ pub(super) fn assemble(prep: &Prepared<'_>, outs: &[TaskOut]) -> Outlook {
             })
             .collect(),
         scenarios: scenario_infos(prep),
-        quantities: Quantity::all(&s.calcification.relationships),
+        quantities: Quantity::all(
+            &s.calcification.relationships,
+            s.calcification.site_rate.is_some(),
+        ),
         series,
         crossings,
         probabilities,
         classes: s.classes.clone(),
         relationships: s.calcification.relationships.clone(),
-        calcification_baseline_kg_m2_yr: s.calcification.baseline_rate_kg_m2_yr,
-        calcification_baseline_source: s.calcification.baseline_rate_source.clone(),
+        site_rate: s.calcification.site_rate.clone(),
         notes,
         heat: None,
     }
@@ -163,7 +165,7 @@ fn p95(q: &Quantiles) -> f64 {
 /// The three crossing levels: 5 %, median, 95 %.
 const CROSSING_LEVELS: [fn(&Quantiles) -> f64; 3] = [p05, p50, p95];
 
-/// Crossing rows per group, then for the worst season (lowest season quantile each year).
+/// Crossing rows of Omega_ar below each habitat threshold per group, then for the worst season (lowest season quantile each year).
 fn crossings_of(
     prep: &Prepared<'_>,
     p: usize,
@@ -233,18 +235,6 @@ fn crossings_of(
                     threshold_omega_ar: t,
                 },
                 met_at_baseline: *omega_b < t,
-            });
-        }
-        for rel in &s.calcification.relationships {
-            out.push(Crossing {
-                pathway: PathwayId(p),
-                scenario: scenario_id(vi),
-                group: *group,
-                criterion: Criterion::NetCalcificationZero(rel.rel_id()),
-                first_year: first(Quantity::NetCalc(rel.rel_id()), &|v| {
-                    first_year_at_or_below(&s.years, v, 0.0)
-                }),
-                met_at_baseline: false,
             });
         }
     }

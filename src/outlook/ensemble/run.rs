@@ -16,11 +16,23 @@ use super::prepare::{Group, Prepared};
 use super::quantiles::five_quantiles;
 use super::settings::{Progress, input_err};
 
-/// What a member gives in one year: its solved state and temperature.
+/// A member's own present-day state: its record with its draws (measurement errors and
+/// constants) at the sampling conditions, projected to the sampling year. Changes are taken
+/// against it, so they are paired member by member.
+#[derive(Clone, Copy, Debug)]
+pub(super) struct Present {
+    pub omega_ar: f64,
+    pub ph_t: f64,
+    pub temp_c: f64,
+}
+
+/// What a member gives in one year: its solved state and temperature, and its present-day
+/// state (`None` when that could not be solved).
 #[derive(Clone, Copy, Debug)]
 struct Sample {
     state: CarbonateState,
     temp_c: f64,
+    present: Option<Present>,
 }
 
 impl Sample {
@@ -36,6 +48,8 @@ impl Sample {
             Quantity::Ta => st.ta,
             Quantity::Co3 => st.co3,
             Quantity::TempC => self.temp_c,
+            Quantity::OmegaArChange => self.present.map_or(f64::NAN, |p| st.omega_ar - p.omega_ar),
+            Quantity::PhTChange => self.present.map_or(f64::NAN, |p| st.ph_t - p.ph_t),
             Quantity::CalcChangePct(_) | Quantity::NetCalc(_) => f64::NAN,
         }
     }
@@ -84,15 +98,15 @@ struct Precomputed {
 
 impl Prepared<'_> {
     /// Solves one member under pathway `p` for every horizon year and variant, calling
-    /// `sink(year index, variant index, result, temperature)`. `cached` holds the central
-    /// year conditions of the member's record (one per year) and its constants at sampling
-    /// when precomputed.
+    /// `sink(year index, variant index, result, temperature, present-day state)`. `cached`
+    /// holds the central year conditions of the member's record (one per year) and its
+    /// constants at sampling when precomputed.
     fn eval_member(
         &self,
         p: usize,
         draw: &MemberDraw,
         cached: Option<(&[YearConditions], &Constants)>,
-        sink: &mut dyn FnMut(usize, usize, Result<CarbonateState, String>, f64),
+        sink: &mut dyn FnMut(usize, usize, Result<CarbonateState, String>, f64, Option<Present>),
     ) {
         let site = self.site;
         let s = self.s;
@@ -111,12 +125,13 @@ impl Prepared<'_> {
             Err(msg) => {
                 for yi in 0..s.years.len() {
                     for vi in 0..self.variants.len() {
-                        sink(yi, vi, Err(msg.clone()), f64::NAN);
+                        sink(yi, vi, Err(msg.clone()), f64::NAN, None);
                     }
                 }
                 return;
             }
         };
+        let present = self.present(rec, anchor, draw, ta, pco2_rec, cached.map(|c| c.1));
         let cached = cached.map(|c| c.0);
         let warming = s.warming.then_some(&spec.warming);
         for (yi, &year) in s.years.iter().enumerate() {
@@ -138,7 +153,7 @@ impl Prepared<'_> {
                         }
                         Err(e) => {
                             for vi in 0..self.variants.len() {
-                                sink(yi, vi, Err(e.to_string()), f64::NAN);
+                                sink(yi, vi, Err(e.to_string()), f64::NAN, present);
                             }
                             continue;
                         }
@@ -156,9 +171,46 @@ impl Prepared<'_> {
             let pco2_sea = anchor.project_pco2(pco2_rec, yc.pco2_air, s.mode);
             for (vi, v) in self.variants.iter().enumerate() {
                 let res = solve_projected(ta, pco2_sea, v.offsets_for(rec.season, year), k);
-                sink(yi, vi, res, yc.temp_c);
+                sink(yi, vi, res, yc.temp_c, present);
             }
         }
+    }
+
+    /// The member's present-day state: its TA and seawater pCO2 at sampling projected to the
+    /// sampling year (the same arithmetic as any horizon year) and solved with its constants
+    /// at the sampling conditions (`k_sample`: central constants there, computed when `None`).
+    fn present(
+        &self,
+        rec: &super::super::ProjectionRecord,
+        anchor: &super::super::projection::RecordAnchor,
+        draw: &MemberDraw,
+        ta: f64,
+        pco2_rec: f64,
+        k_sample: Option<&Constants>,
+    ) -> Option<Present> {
+        let fresh;
+        let k0 = match k_sample {
+            Some(k) => k,
+            None => {
+                fresh = Constants::new(&rec.conditions_at(rec.temp_c), &self.site.methods);
+                &fresh
+            }
+        };
+        let perturbed;
+        let k = match &draw.perturbation {
+            Some(pt) => {
+                perturbed = k0.perturbed(pt);
+                &perturbed
+            }
+            None => k0,
+        };
+        let pco2_sea = anchor.project_pco2(pco2_rec, anchor.pco2_air_sample, self.s.mode);
+        let st = solve_projected(ta, pco2_sea, None, k).ok()?;
+        Some(Present {
+            omega_ar: st.omega_ar,
+            ph_t: st.ph_t,
+            temp_c: rec.temp_c,
+        })
     }
 
     /// Central year conditions of every record of `g` under pathway `p`, and the records'
@@ -222,36 +274,45 @@ fn run_task(prep: &Prepared<'_>, p: usize, g: &Group, progress: &dyn Progress) -
             .get(d.record)
             .map(|r| r.label.as_str())
             .unwrap_or("");
-        prep.eval_member(p, &d, cached, &mut |yi, vi, res, temp_c| match res {
-            Ok(state) => {
-                if let Some(slot) = samples
-                    .get_mut(vi)
-                    .and_then(|v| v.get_mut(yi))
-                    .and_then(|y| y.get_mut(m))
-                {
-                    *slot = Some(Sample { state, temp_c });
+        prep.eval_member(
+            p,
+            &d,
+            cached,
+            &mut |yi, vi, res, temp_c, present| match res {
+                Ok(state) => {
+                    if let Some(slot) = samples
+                        .get_mut(vi)
+                        .and_then(|v| v.get_mut(yi))
+                        .and_then(|y| y.get_mut(m))
+                    {
+                        *slot = Some(Sample {
+                            state,
+                            temp_c,
+                            present,
+                        });
+                    }
                 }
-            }
-            Err(msg) => {
-                failures += 1;
-                if first_failure.is_none() {
-                    first_failure = Some(format!(
-                        "{label}: {} {}: {msg}",
-                        s.pathways
-                            .get(p)
-                            .map(|x| x.pathway.name.as_str())
-                            .unwrap_or(""),
-                        s.years.get(yi).copied().unwrap_or(0)
-                    ));
+                Err(msg) => {
+                    failures += 1;
+                    if first_failure.is_none() {
+                        first_failure = Some(format!(
+                            "{label}: {} {}: {msg}",
+                            s.pathways
+                                .get(p)
+                                .map(|x| x.pathway.name.as_str())
+                                .unwrap_or(""),
+                            s.years.get(yi).copied().unwrap_or(0)
+                        ));
+                    }
                 }
-            }
-        });
+            },
+        );
         progress.advance(ny as u64);
     }
 
     let variants = samples
         .iter()
-        .map(|per_year| summarise(prep, g, per_year))
+        .map(|per_year| summarise(prep, per_year))
         .collect();
     TaskOut {
         variants,
@@ -262,10 +323,10 @@ fn run_task(prep: &Prepared<'_>, p: usize, g: &Group, progress: &dyn Progress) -
 
 /// Quantiles of every quantity and the share below each threshold, per year, from the
 /// members' samples `per_year[year][member]`.
-fn summarise(prep: &Prepared<'_>, g: &Group, per_year: &[Vec<Option<Sample>>]) -> VariantSummary {
+fn summarise(prep: &Prepared<'_>, per_year: &[Vec<Option<Sample>>]) -> VariantSummary {
     let s = prep.s;
     let rels = &s.calcification.relationships;
-    let rate = s.calcification.baseline_rate_kg_m2_yr;
+    let rate = s.calcification.site_rate.as_ref().map(|r| r.kg_m2_yr);
     let mut scratch = Vec::new();
     let mut quantiles_of = |values: &mut dyn Iterator<Item = f64>| {
         scratch.clear();
@@ -274,7 +335,7 @@ fn summarise(prep: &Prepared<'_>, g: &Group, per_year: &[Vec<Option<Sample>>]) -
         (Quantiles::from_levels(q), scratch.len())
     };
     let mut series: Vec<(Quantity, Vec<QuantilePoint>)> = Vec::new();
-    for q in Quantity::STATE {
+    for q in Quantity::STATE.into_iter().chain(Quantity::PAIRED_CHANGES) {
         let points = per_year
             .iter()
             .zip(&s.years)
@@ -295,9 +356,11 @@ fn summarise(prep: &Prepared<'_>, g: &Group, per_year: &[Vec<Option<Sample>>]) -
         series.push((q, points));
     }
     for rel in rels {
+        // Paired: the member's state in the year against its own present-day state.
         let factor = |x: &Option<Sample>| {
-            x.as_ref()
-                .and_then(|x| rel.relative(x.state.omega_ar, x.temp_c, g.omega_b, g.temp_b))
+            let x = x.as_ref()?;
+            let p = x.present?;
+            rel.relative(x.state.omega_ar, x.temp_c, p.omega_ar, p.temp_c)
         };
         let mut change = Vec::with_capacity(per_year.len());
         let mut net = Vec::with_capacity(per_year.len());
@@ -308,24 +371,28 @@ fn summarise(prep: &Prepared<'_>, g: &Group, per_year: &[Vec<Option<Sample>>]) -
                     .iter()
                     .map(|x| factor(x).map_or(f64::NAN, |f| (f - 1.0) * 100.0)),
             );
-            let (qn, nn) =
-                quantiles_of(&mut ms.iter().map(|x| factor(x).map_or(f64::NAN, |f| rate * f)));
             change.push(QuantilePoint {
                 year,
                 q: qc,
                 members: nc,
                 outside_fit_pct: Some(outside),
             });
-            net.push(QuantilePoint {
-                year,
-                q: qn,
-                members: nn,
-                outside_fit_pct: Some(outside),
-            });
+            if let Some(rate) = rate {
+                let (qn, nn) =
+                    quantiles_of(&mut ms.iter().map(|x| factor(x).map_or(f64::NAN, |f| rate * f)));
+                net.push(QuantilePoint {
+                    year,
+                    q: qn,
+                    members: nn,
+                    outside_fit_pct: Some(outside),
+                });
+            }
         }
         let [qc, qn] = Quantity::of_relationship(rel.rel_id());
         series.push((qc, change));
-        series.push((qn, net));
+        if rate.is_some() {
+            series.push((qn, net));
+        }
     }
     let below = s
         .classes
@@ -427,7 +494,7 @@ pub fn member_states(
         .iter()
         .map(|_| (0..ny).map(|_| Err("not solved".to_string())).collect())
         .collect();
-    prep.eval_member(pathway, &d, None, &mut |yi, vi, res, _| {
+    prep.eval_member(pathway, &d, None, &mut |yi, vi, res, _, _| {
         if let Some(slot) = out.get_mut(vi).and_then(|v| v.get_mut(yi)) {
             *slot = res;
         }

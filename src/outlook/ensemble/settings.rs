@@ -150,10 +150,11 @@ pub(super) fn validate(site: &SiteInput, s: &ProjectionSettings) -> Result<(), O
         return Err(input_err("threads must be at least 1"));
     }
     e.measurement.validate()?;
-    let rate = s.calcification.baseline_rate_kg_m2_yr;
-    if !rate.is_finite() || rate <= 0.0 {
+    if let Some(rate) = s.calcification.site_rate.as_ref().map(|r| r.kg_m2_yr)
+        && (!rate.is_finite() || rate <= 0.0)
+    {
         return Err(input_err(format!(
-            "calcification baseline rate {rate} kg CaCO3 m-2 yr-1 must be positive"
+            "the site's calcification rate {rate} kg CaCO3 m-2 yr-1 must be positive"
         )));
     }
     Ok(())

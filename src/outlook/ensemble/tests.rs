@@ -6,8 +6,9 @@ use crate::outlook::result::{
     Criterion, CrossingGroup, CrossingKind, Outlook, Quantity, RelationshipId, ScenarioId,
 };
 use crate::outlook::{
-    Disequilibrium, LocalScenario, Observed, Offsets, OutputFormat, OutputTable, Pathway,
-    PathwaySpec, ProjectionRecord, ProjectionSettings, SiteInput, project_record,
+    CalcificationSettings, Disequilibrium, LocalScenario, Observed, Offsets, OutputFormat,
+    OutputTable, Pathway, PathwaySpec, ProjectionRecord, ProjectionSettings, SiteInput,
+    project_record,
 };
 
 /// The quantile series of one quantity: (year, [p05, p25, p50, p75, p95]); empty when absent.
@@ -68,6 +69,8 @@ fn site() -> SiteInput {
 
 fn settings(site: &SiteInput, members: usize) -> ProjectionSettings {
     let mut s = ProjectionSettings::defaults_for(site);
+    // These tests were written for the temperatures as measured.
+    s.warming = false;
     s.ensemble.members = members;
     s.years = vec![2025, 2030, 2040, 2050, 2060, 2070, 2080, 2090, 2100];
     s
@@ -261,10 +264,7 @@ fn crossing_rows_follow_the_quantile_series() {
     {
         let Criterion::OmegaArBelow {
             threshold_omega_ar, ..
-        } = row.criterion
-        else {
-            unreachable!()
-        };
+        } = row.criterion;
         let group = match row.group {
             CrossingGroup::WorstSeason => {
                 // The worst season crosses no later than any season.
@@ -369,8 +369,12 @@ fn members_respect_the_measured_pair() {
     );
 }
 
+/// Worked arithmetic on the rate laws: with G = 0 at Omega_ar <= 1 (Silverman et al. 2009)
+/// and G proportional to Omega_ar - 1 (Langdon & Atkinson 2005), the relative change reaches
+/// -100 % once Omega_ar <= 1 (and the rows are flagged as outside the fitted range); no
+/// net-zero crossing is given, since no relationship has a dissolution term.
 #[test]
-fn calcification_zero_year_under_extreme_pathway() {
+fn rate_laws_reach_minus_100_percent_below_saturation() {
     let mut site = site();
     site.records.truncate(1);
     site.seasons.truncate(1);
@@ -383,34 +387,40 @@ fn calcification_zero_year_under_extreme_pathway() {
     let omega = series(&o, "extreme", BASE_SCENARIO, "dry", Quantity::OmegaAr);
     let first_unsat = omega.iter().find(|(_, q)| q[2] <= 1.0).map(|(y, _)| *y);
     assert!(first_unsat.is_some(), "{omega:?}");
-    let dry = CrossingGroup::Group(o.group_id("dry").unwrap());
-    let zero_year = |id: &'static str| {
+    let silverman = series(
+        &o,
+        "extreme",
+        BASE_SCENARIO,
+        "dry",
+        Quantity::CalcChangePct(RelationshipId("silverman2009")),
+    );
+    for (y, q) in &silverman {
+        if Some(*y) >= first_unsat {
+            assert_eq!(q[2], -100.0, "{y}");
+        } else {
+            assert!(q[2] > -100.0, "{y}");
+        }
+    }
+    assert!(
         o.crossings
             .iter()
-            .find(|r| {
-                r.group == dry && r.criterion == Criterion::NetCalcificationZero(RelationshipId(id))
-            })
-            .unwrap()
-            .first_year
-            .p50
-    };
-    for id in ["silverman2009", "langdon2005"] {
-        assert_eq!(zero_year(id), first_unsat, "{id}");
-    }
-    assert_eq!(
-        zero_year("chan2013"),
-        None,
-        "a -15 %/unit line cannot reach -100 % here"
+            .all(|c| c.criterion.kind() == CrossingKind::OmegaArBelow)
     );
     // Rows below Omega_ar 1 are flagged as extrapolation.
     let flagged = o
         .series
         .iter()
-        .filter(|s| s.quantity == Quantity::NetCalc(RelationshipId("silverman2009")))
+        .filter(|s| s.quantity == Quantity::CalcChangePct(RelationshipId("silverman2009")))
         .flat_map(|s| s.points.iter())
         .filter(|pt| Some(pt.year) >= first_unsat)
         .all(|pt| pt.outside_fit_pct == Some(100.0));
     assert!(flagged);
+    // No site rate: no absolute net calcification anywhere.
+    assert!(
+        !o.series
+            .iter()
+            .any(|s| matches!(s.quantity, Quantity::NetCalc(_)))
+    );
 }
 
 #[test]
@@ -444,9 +454,9 @@ fn bad_settings_give_clear_errors() {
             .contains("twice")
     );
     let mut s = settings(&site, 10);
-    s.years = vec![2120];
+    s.years = vec![2301];
     let e = run(&site, &s, &NoProgress).unwrap_err().to_string();
-    assert!(e.contains("2120") && e.contains("SSP1-1.9"), "{e}");
+    assert!(e.contains("2301") && e.contains("SSP1-1.9"), "{e}");
     let mut bad = site.clone();
     bad.records[2].pco2 = -5.0;
     let e = run(&bad, &settings(&bad, 10), &NoProgress)
@@ -464,7 +474,9 @@ fn bad_settings_give_clear_errors() {
 #[test]
 fn outputs_carry_units_and_fixed_decimals() {
     let site = site();
-    let s = settings(&site, 50);
+    let mut s = settings(&site, 50);
+    s.calcification =
+        CalcificationSettings::from_site(Some(2.0), Some("invented survey"), &[]).unwrap();
     let o = run(&site, &s, &NoProgress).unwrap();
     let mut csv = Vec::new();
     o.write_quantiles_csv(&mut csv).unwrap();
@@ -489,11 +501,11 @@ fn outputs_carry_units_and_fixed_decimals() {
     o.write_json(&mut json).unwrap();
     let v: serde_json::Value = serde_json::from_slice(&json).unwrap();
     assert!(!v["thresholds"]["crossings"].as_array().unwrap().is_empty());
-    assert!(
-        !v["calcification"]["zero_years"]
-            .as_array()
-            .unwrap()
-            .is_empty()
+    assert!(v["calcification"].get("zero_years").is_none());
+    assert_eq!(v["calcification"]["baseline_rate_kg_m2_yr"], 2.0);
+    assert_eq!(
+        v["calcification"]["baseline_rate_source"],
+        "invented survey"
     );
     assert_eq!(
         v["calcification"]["relationships"]
@@ -506,4 +518,51 @@ fn outputs_carry_units_and_fixed_decimals() {
         v["quantiles"].as_array().unwrap().len(),
         o.quantile_rows().len()
     );
+}
+
+/// Worked arithmetic: a member compared with itself. Records sampled in 2025 (the last
+/// observed year) under the steady pathway (the atmosphere held at the 2025 mean) with
+/// warming off are projected to exactly their present-day state, so every paired change
+/// (Omega_ar, pH_T, calcification per relationship) is zero with a zero-width 5-95 % band,
+/// with every source of uncertainty drawn.
+#[test]
+fn steady_atmosphere_without_warming_gives_zero_change() {
+    let mut site = site();
+    for r in &mut site.records {
+        r.sample_year = 2025;
+    }
+    let mut s = settings(&site, 200);
+    s.years = vec![2030, 2050, 2100];
+    s.warming = false;
+    s.pathways = vec![PathwaySpec::with_default_warming(
+        Pathway::builtin("steady").unwrap(),
+        &site.observed,
+    )];
+    let o = run(&site, &s, &NoProgress).unwrap();
+    let mut checked = 0;
+    for series in &o.series {
+        let is_change = matches!(
+            series.quantity,
+            Quantity::OmegaArChange | Quantity::PhTChange | Quantity::CalcChangePct(_)
+        );
+        if !is_change {
+            continue;
+        }
+        for pt in &series.points {
+            assert_eq!(pt.members, 200, "{:?}", series.quantity);
+            for v in pt.q.levels() {
+                assert_eq!(
+                    v, 0.0,
+                    "{:?} {:?} {}",
+                    series.quantity, series.group, pt.year
+                );
+            }
+            checked += 1;
+        }
+    }
+    // 3 groups x 3 years x (2 state changes + 3 relationships).
+    assert_eq!(checked, 45);
+    // The states themselves still spread (constants, measurement, record draws).
+    let om = series(&o, "steady", BASE_SCENARIO, "dry", Quantity::OmegaAr);
+    assert!(om[0].1[4] - om[0].1[0] > 0.1, "{om:?}");
 }

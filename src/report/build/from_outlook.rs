@@ -151,10 +151,7 @@ pub(super) fn crossings(outlook: &Outlook) -> Vec<Crossing> {
         .filter_map(|c| {
             let Criterion::OmegaArBelow {
                 threshold_omega_ar, ..
-            } = c.criterion
-            else {
-                return None;
-            };
+            } = c.criterion;
             let CrossingGroup::Group(g @ GroupId::Season(_)) = c.group else {
                 return None;
             };
@@ -209,6 +206,7 @@ pub(super) fn calcification(outlook: &Outlook) -> (Vec<CalcificationOutlook>, Ve
         .iter()
         .map(|rel| {
             let [change, net] = Quantity::of_relationship(rel.rel_id());
+            // Absolute rates exist only when the site gave a measured rate.
             let series: Vec<CalcSeries> = outlook
                 .pathway_ids()
                 .map(|(pid, p)| CalcSeries {
@@ -255,8 +253,9 @@ pub(super) fn calcification(outlook: &Outlook) -> (Vec<CalcificationOutlook>, Ve
                 baseline: None,
                 series,
                 note: Some(format!(
-                    "{} ({}). Source status: {}. Identifier in site files and in the tables \
-                     of calcisite project: {}.",
+                    "Gives a {}. {} ({}). Source status: {}. Identifier in site files and in \
+                     the tables of calcisite project: {}.",
+                    rel.measures,
                     formula_text(rel.form_text),
                     formula_text(rel.scope),
                     rel.status,
@@ -347,11 +346,15 @@ pub(super) fn settings(outlook: &Outlook) -> Vec<Setting> {
         ),
         super::setting("Record variability", st.record_variability.clone()),
         super::setting(
-            "Baseline calcification",
-            format!(
-                "{:.2} kg CaCO₃ m⁻² yr⁻¹ ({})",
-                outlook.calcification_baseline_kg_m2_yr, outlook.calcification_baseline_source
-            ),
+            "Site calcification rate",
+            match &outlook.site_rate {
+                Some(r) => format!("{:.2} kg CaCO₃ m⁻² yr⁻¹ ({})", r.kg_m2_yr, r.source),
+                None => crate::outlook::calcification::NO_SITE_RATE.to_string(),
+            },
+        ),
+        super::setting(
+            "Not modelled",
+            crate::outlook::output::NOT_MODELLED.to_string(),
         ),
     ]
 }
@@ -360,20 +363,18 @@ pub(super) fn settings(outlook: &Outlook) -> Vec<Setting> {
 /// notes, worded for the report.
 pub(super) fn notes(outlook: &Outlook, absolute_notes: &[String]) -> Vec<String> {
     let mut notes = Vec::new();
-    if !absolute_notes.is_empty() {
+    if let Some(rate) = &outlook.site_rate
+        && !absolute_notes.is_empty()
+    {
         notes.push(format!(
-            "Net calcification at the baseline rate of {:.2} kg CaCO₃ m⁻² yr⁻¹ \
-             (see Projection settings), ensemble median in kg CaCO₃ m⁻² yr⁻¹: {}.",
-            outlook.calcification_baseline_kg_m2_yr,
+            "Net calcification at the site's measured rate of {:.2} kg CaCO₃ m⁻² yr⁻¹ ({}), \
+             ensemble median in kg CaCO₃ m⁻² yr⁻¹: {}.",
+            rate.kg_m2_yr,
+            rate.source,
             absolute_notes.join("; ")
         ));
     }
-    notes.extend(
-        outlook
-            .notes
-            .iter()
-            .map(|n| super::tidy_numbers(&n.to_string())),
-    );
+    notes.extend(outlook.notes.iter().map(|n| n.to_string()));
     notes
 }
 

@@ -539,7 +539,10 @@ impl RowReader<'_, '_> {
             };
             // The record limits are the narrower ones: say the same range as the help.
             let message = if v < lo || v > hi {
-                format!("{key} = {v}{unit} is outside the valid range {lo} to {hi}{unit}")
+                format!(
+                    "{key} = {}{unit} is outside the valid range {lo} to {hi}{unit}",
+                    crate::numfmt::tidy(v)
+                )
             } else {
                 chem_msg.unwrap_or_default()
             };
