@@ -320,7 +320,7 @@ const CAUTION: [&str; 4] = [
     "consult the local permitting authorities and licensed professionals",
 ];
 
-const SITE_SECTIONS: [&str; 9] = [
+const SITE_SECTIONS: [&str; 8] = [
     "Site and data",
     "Coverage per season",
     "Quality control",
@@ -329,17 +329,17 @@ const SITE_SECTIONS: [&str; 9] = [
     "Thresholds and crossing years",
     "First year below each level",
     "Calcification outlook",
-    "Projection settings",
 ];
 
-const CLOSING_SECTIONS: [&str; 8] = [
+const CLOSING_SECTIONS: [&str; 9] = [
     "Methods",
     "Carbonate chemistry",
+    "Projection settings",
     "Habitat classes",
     "Calcification relationships",
     "Assumptions and limitations",
     "Reproducibility",
-    "Settings",
+    "Further settings",
     "Input files",
 ];
 
@@ -609,6 +609,23 @@ fn data_out_holds_the_medians_of_project() {
                     }
                 }
             }
+        }
+    }
+}
+
+#[test]
+fn settings_shared_by_every_site_are_printed_once() {
+    // Every demo site projects with the same ensemble settings: each setting's name is printed
+    // once (under Methods), not once per site and again under Reproducibility.
+    for (report, what) in [(one(), "one-site"), (comparison(), "comparison")] {
+        for name in [
+            "Disequilibrium",
+            "Record variability",
+            "Measurement uncertainties",
+            "Constant uncertainties",
+        ] {
+            let n = report.squeezed.matches(&squeeze(name)).count();
+            assert_eq!(n, 1, "{what}: {name:?} printed {n} times");
         }
     }
 }
