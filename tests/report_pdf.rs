@@ -742,14 +742,11 @@ fn appendix_lists_every_sample_with_file_and_line() {
         .expect("appendix");
     let appendix = &r.squeezed[start..];
     let opt = |v: &Value, d: usize| fmt::opt(v.as_f64(), d);
-    for s in samples {
-        // Line, date, station, season, T, S, p, TA, DIC, pH, pCO2, Ω_ar, Ω_ca: one row.
-        let row = squeeze(&format!(
-            "{}{}{}{}{}{}{}{}{}{}{}{}{}",
-            s["row"].as_u64().expect("row"),
-            str_at(s, "date"),
-            str_at(s, "station"),
-            str_at(s, "season"),
+    // Station, season, T, S, p, TA, DIC, pH, pCO2, Ω_ar, Ω_ca as the report formats them.
+    let fields = |s: &Value| -> Vec<String> {
+        vec![
+            str_at(s, "station").to_string(),
+            str_at(s, "season").to_string(),
             fmt::temp(s["temp_c"].as_f64().expect("T")),
             fmt::salinity(s["salinity"].as_f64().expect("S")),
             fmt::pressure(s["pressure_dbar"].as_f64().expect("p")),
@@ -759,8 +756,44 @@ fn appendix_lists_every_sample_with_file_and_line() {
             opt(&s["pco2"], 0),
             opt(&s["omega_ar"], 2),
             opt(&s["omega_ca"], 2),
-        ));
-        assert!(appendix.contains(&row), "appendix row {row:?} missing");
+        ]
+    };
+    for f in &files {
+        let group: Vec<&Value> = samples.iter().filter(|s| str_at(s, "file") == *f).collect();
+        let first = fields(group[0]);
+        // A field with the same text in every row of a file is said once above its listing.
+        let same: Vec<bool> = (0..first.len())
+            .map(|k| group.len() > 1 && group.iter().all(|s| fields(s)[k] == first[k]))
+            .collect();
+        let head = appendix
+            .find(&squeeze(&format!("record file {f}")))
+            .map(|at| &appendix[at..(at + 400).min(appendix.len())])
+            .unwrap_or_else(|| panic!("no listing of {f}"));
+        for (k, v) in first.iter().enumerate().filter(|(k, _)| same[*k]) {
+            let sentence = head
+                .find("thesameineveryrow:")
+                .map(|at| &head[at..])
+                .unwrap_or_else(|| {
+                    panic!(
+                        "{f}: field {k} ({v:?}) is the same in every row, but no sentence says so"
+                    )
+                });
+            assert!(
+                sentence.contains(&squeeze(v)),
+                "{f}: {v:?} missing from {sentence:?}"
+            );
+        }
+        for s in &group {
+            // Line, date, then the fields that vary: one row.
+            let mut row = format!("{}{}", s["row"].as_u64().expect("row"), str_at(s, "date"));
+            for (k, v) in fields(s).iter().enumerate() {
+                if !same[k] {
+                    row.push_str(v);
+                }
+            }
+            let row = squeeze(&row);
+            assert!(appendix.contains(&row), "appendix row {row:?} missing");
+        }
     }
 }
 
