@@ -21,7 +21,6 @@
 //!
 //! Renders are shared between tests (each takes about a second in a release build).
 
-use std::collections::BTreeSet;
 use std::fs;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
@@ -30,6 +29,9 @@ use std::sync::OnceLock;
 use calcisite::report::{CalcUnit, fmt};
 use serde_json::Value;
 use sha2::{Digest, Sha256};
+
+#[path = "report_pdf/reader.rs"]
+mod reader;
 
 const BIN: &str = env!("CARGO_BIN_EXE_calcisite");
 const FOREREEF: &str = "sites/tala-vesi-forereef.toml";
@@ -320,7 +322,7 @@ const CAUTION: [&str; 4] = [
     "consult the local permitting authorities and licensed professionals",
 ];
 
-const SITE_SECTIONS: [&str; 9] = [
+const SITE_SECTIONS: [&str; 8] = [
     "Site and data",
     "Coverage per season",
     "Quality control",
@@ -329,17 +331,17 @@ const SITE_SECTIONS: [&str; 9] = [
     "Thresholds and crossing years",
     "First year below each level",
     "Calcification outlook",
-    "Projection settings",
 ];
 
-const CLOSING_SECTIONS: [&str; 8] = [
+const CLOSING_SECTIONS: [&str; 9] = [
     "Methods",
     "Carbonate chemistry",
+    "Projection settings",
     "Habitat classes",
     "Calcification relationships",
     "Assumptions and limitations",
     "Reproducibility",
-    "Settings",
+    "Further settings",
     "Input files",
 ];
 
@@ -614,53 +616,6 @@ fn data_out_holds_the_medians_of_project() {
 }
 
 #[test]
-fn appendix_lists_every_sample_with_file_and_line() {
-    let r = render(&[PASS], &["--appendix"], &[]);
-    r.assert_has(
-        "Appendix: carbonate chemistry of every sample",
-        "appendix title",
-    );
-    let site = &r.data()["sites"][0];
-    let samples = site["samples"].as_array().expect("samples");
-    let records = site_toml(PASS)["records"]
-        .as_array()
-        .expect("records")
-        .len();
-    assert!(records >= 1);
-    let files: BTreeSet<&str> = samples.iter().map(|s| str_at(s, "file")).collect();
-    assert!(!samples.is_empty());
-    for f in &files {
-        r.assert_has(f, "record file in the appendix");
-    }
-    let start = r
-        .squeezed
-        .find(&squeeze("Appendix: carbonate chemistry"))
-        .expect("appendix");
-    let appendix = &r.squeezed[start..];
-    let opt = |v: &Value, d: usize| fmt::opt(v.as_f64(), d);
-    for s in samples {
-        // Line, date, station, season, T, S, p, TA, DIC, pH, pCO2, Ω_ar, Ω_ca: one row.
-        let row = squeeze(&format!(
-            "{}{}{}{}{}{}{}{}{}{}{}{}{}",
-            s["row"].as_u64().expect("row"),
-            str_at(s, "date"),
-            str_at(s, "station"),
-            str_at(s, "season"),
-            fmt::temp(s["temp_c"].as_f64().expect("T")),
-            fmt::salinity(s["salinity"].as_f64().expect("S")),
-            fmt::pressure(s["pressure_dbar"].as_f64().expect("p")),
-            opt(&s["ta"], 0),
-            opt(&s["dic"], 0),
-            opt(&s["ph_t"], 3),
-            opt(&s["pco2"], 0),
-            opt(&s["omega_ar"], 2),
-            opt(&s["omega_ca"], 2),
-        ));
-        assert!(appendix.contains(&row), "appendix row {row:?} missing");
-    }
-}
-
-#[test]
 fn same_inputs_give_the_same_bytes_whatever_the_thread_count() {
     let single = render(&[LAGOON], &[], &[("RAYON_NUM_THREADS", "1")]);
     assert!(
@@ -672,58 +627,6 @@ fn same_inputs_give_the_same_bytes_whatever_the_thread_count() {
         cmp.pdf == comparison().pdf,
         "comparison PDF differs with RAYON_NUM_THREADS=1"
     );
-}
-
-/// The last date (local, as written) in the date column of a site's record files: the first ten
-/// characters of the `date` or `datetime` cell are the ISO date.
-fn last_record_date(site: &str) -> String {
-    input_files(site)
-        .iter()
-        .skip(1)
-        .flat_map(|f| {
-            let text = fs::read_to_string(f).expect("records");
-            let mut lines = text.lines();
-            let header: Vec<&str> = lines.next().expect("header").split(',').collect();
-            let col = header
-                .iter()
-                .position(|h| *h == "date" || *h == "datetime")
-                .expect("date column");
-            lines
-                .filter_map(|l| l.split(',').nth(col).map(|c| c.chars().take(10).collect()))
-                .collect::<Vec<String>>()
-        })
-        .max()
-        .expect("a record")
-}
-
-#[test]
-fn data_date_and_preparation_date_are_printed_apart() {
-    // The lagoon site gives no [report] date: the last sample date is printed, and a note says
-    // that no preparation date was set.
-    let last = last_record_date(LAGOON);
-    one().assert_has(&format!("Data to {last}"), "last sample date");
-    one().assert_has("Prepared date not set", "note on the missing date");
-    assert!(!one().has("Report date"), "the old single date is back");
-    // 1700000000 s = 2023-11-14T22:13:20Z (GNU `date -u -d @1700000000`).
-    let r = render(&[LAGOON], &[], &[("SOURCE_DATE_EPOCH", "1700000000")]);
-    r.assert_has("Prepared 2023-11-14", "SOURCE_DATE_EPOCH date");
-    r.assert_has("2023-11-14T22:13:20Z", "SOURCE_DATE_EPOCH timestamp");
-    r.assert_has(&format!("Data to {last}"), "last sample date");
-    assert!(!r.has("date not set"));
-    assert!(r.pdf != one().pdf);
-    // A [report] date is the preparation date.
-    let dir = tempfile::tempdir().expect("temp dir");
-    let demo = repo().join("demo-data");
-    let text = fs::read_to_string(repo().join(LAGOON))
-        .expect("site")
-        .replace("../demo-data", &demo.display().to_string())
-        .replace("[report]\n", "[report]\ndate = \"2025-02-01\"\n");
-    let site = dir.path().join("dated.toml");
-    fs::write(&site, text).expect("write site");
-    let site = site.display().to_string();
-    let r = render(&[site.as_str()], &[], &[]);
-    r.assert_has("Prepared 2025-02-01", "[report] date");
-    r.assert_has(&format!("Data to {last}"), "last sample date");
 }
 
 #[test]

@@ -3,7 +3,7 @@
 //! writing the outputs. Filling the [`crate::report::ReportModel`] from the site and outlook
 //! stages is done by the caller.
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 use crate::report::ReportError;
 
@@ -196,12 +196,19 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
             return EXIT_INPUT;
         }
     }
-    // The command that reproduces the numbers (output paths left out, so that the same
-    // inputs give the same PDF wherever it is written).
+    // The command that reproduces the numbers, run in the first site file's folder: site
+    // paths relative to it, so that no folder of this machine is printed, and output paths
+    // left out, so that the same inputs give the same PDF wherever it is written.
+    let base = args
+        .sites
+        .first()
+        .and_then(|s| s.parent())
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
     let mut command = String::from("calcisite report");
     for s in &args.sites {
         command.push(' ');
-        command.push_str(&s.display().to_string());
+        command.push_str(&relative_to(base, s).display().to_string());
     }
     if let Some(seed) = args.seed {
         command.push_str(&format!(" --seed {seed}"));
@@ -247,6 +254,31 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
     }
 }
 
+/// `path` written relative to the folder `base` (both as given or, failing that, both made
+/// absolute); the file name alone when no relation can be worked out.
+fn relative_to(base: &Path, path: &Path) -> PathBuf {
+    if let Ok(rest) = path.strip_prefix(base) {
+        return rest.to_path_buf();
+    }
+    let (Ok(base), Ok(path)) = (std::path::absolute(base), std::path::absolute(path)) else {
+        return path.file_name().map(PathBuf::from).unwrap_or_default();
+    };
+    let b: Vec<_> = base.components().collect();
+    let p: Vec<_> = path.components().collect();
+    let common = b.iter().zip(&p).take_while(|(x, y)| x == y).count();
+    if common == 0 {
+        return path.file_name().map(PathBuf::from).unwrap_or_default();
+    }
+    let mut out = PathBuf::new();
+    for _ in common..b.len() {
+        out.push("..");
+    }
+    for c in &p[common..] {
+        out.push(c);
+    }
+    out
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -283,6 +315,27 @@ mod tests {
         );
         assert!(c.args.appendix && c.args.pdfa);
         assert_eq!(c.args.seed, Some(7));
+    }
+
+    #[test]
+    fn command_paths_are_relative_to_the_first_site_folder() {
+        let p = |s: &str| PathBuf::from(s);
+        assert_eq!(
+            relative_to(Path::new("sites"), Path::new("sites/a.toml")),
+            p("a.toml")
+        );
+        assert_eq!(
+            relative_to(Path::new("/x/sites"), Path::new("/x/other/b.toml")),
+            p("../other/b.toml")
+        );
+        assert_eq!(
+            relative_to(Path::new("."), Path::new("a.toml")),
+            p("a.toml")
+        );
+        assert_eq!(
+            relative_to(Path::new("/x/sites"), Path::new("/x/sites/deep/c.toml")),
+            p("deep/c.toml")
+        );
     }
 
     #[test]

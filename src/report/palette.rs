@@ -1,7 +1,7 @@
 //! Colours, dashes and markers for the report's figures.
 //!
-//! The pathway colours are our own picks along a path from light yellow-green through teal, blue
-//! and violet to dark plum, chosen so that CIE L* falls steadily (about 80, 63, 49, 37, 21): in
+//! The pathway colours are our own picks along a path from yellow-green through teal, blue
+//! and violet to dark plum, chosen so that CIE L* falls steadily (about 71, 58, 47, 35, 20): in
 //! greyscale print the lowest-emission pathway is the lightest and the highest the darkest, and
 //! readers with a colour-vision deficiency still separate them by lightness. Each pathway also
 //! has its own dash pattern and marker, so a photocopy still tells them apart. The tests below
@@ -11,10 +11,10 @@ use plotters::style::RGBColor;
 
 /// Pathway line colours, lowest emissions first.
 pub const PATHWAY_COLOURS: [RGBColor; 5] = [
-    RGBColor(0xA3, 0xD5, 0x5F),
-    RGBColor(0x35, 0xA8, 0x9A),
-    RGBColor(0x3F, 0x76, 0xC0),
-    RGBColor(0x7E, 0x3A, 0x8C),
+    RGBColor(0x9A, 0xB8, 0x3A),
+    RGBColor(0x2A, 0x9A, 0x8E),
+    RGBColor(0x4A, 0x6A, 0xC4),
+    RGBColor(0x7E, 0x2F, 0x8C),
     RGBColor(0x4A, 0x1D, 0x4F),
 ];
 
@@ -90,13 +90,15 @@ pub fn pathway_style(index: usize, count: usize) -> PathwayStyle {
 }
 
 /// Threshold-class band fills, from the highest class (lightest) down; neutral warm greys so
-/// they do not compete with the pathway colours. Classes beyond the list reuse the last.
+/// they do not compete with the pathway colours, about 8.5 L* apart (100, 91, 83, 74, 65) so
+/// that neighbouring classes stay apart in greyscale print. Classes beyond the list reuse the
+/// last.
 pub const CLASS_FILLS: [RGBColor; 5] = [
     RGBColor(0xFF, 0xFF, 0xFF),
-    RGBColor(0xF3, 0xF0, 0xE8),
-    RGBColor(0xE6, 0xE0, 0xD3),
-    RGBColor(0xD6, 0xCD, 0xBC),
-    RGBColor(0xC6, 0xBB, 0xA6),
+    RGBColor(0xEB, 0xE6, 0xDB),
+    RGBColor(0xD5, 0xCD, 0xBC),
+    RGBColor(0xBF, 0xB5, 0xA1),
+    RGBColor(0xA9, 0x9E, 0x89),
 ];
 
 /// Fill of threshold class `index` (0 = highest Ω_ar).
@@ -167,8 +169,10 @@ mod tests {
         for w in l.windows(2) {
             assert!(w[0] - w[1] >= 10.0, "lightness steps too small: {l:?}");
         }
-        // Lightest line still visible on white paper, darkest still distinct from black text.
-        assert!(l[0] <= 82.0 && l[4] >= 15.0, "{l:?}");
+        // The lightest line must still read on white paper and over the class bands (at most
+        // L* 72, about 28 below white paper: common practice for thin lines), the darkest still
+        // be distinct from black text.
+        assert!(l[0] <= 72.0 && l[4] >= 15.0, "{l:?}");
     }
 
     #[test]
@@ -226,13 +230,29 @@ mod tests {
     }
 
     #[test]
-    fn class_fills_darken_towards_low_omega() {
+    fn class_fills_darken_towards_low_omega_in_clear_steps() {
         let l: Vec<f64> = CLASS_FILLS.iter().map(|c| lab(*c)[0]).collect();
+        // Neighbouring classes at least 8 L* apart, so that they stay distinct when printed
+        // in grey (common practice: differences under about 5 L* are lost in print).
         for w in l.windows(2) {
-            assert!(w[0] > w[1], "{l:?}");
+            assert!(w[0] - w[1] >= 8.0, "{l:?}");
         }
         // Still light enough for black lines and text on top.
-        assert!(l[l.len() - 1] > 70.0, "{l:?}");
+        assert!(l[l.len() - 1] >= 65.0, "{l:?}");
+    }
+
+    #[test]
+    fn class_fills_stay_apart_in_greyscale() {
+        // Grey level of each fill as a greyscale conversion computes it (ITU-R BT.601 luma,
+        // 0.299 R + 0.587 G + 0.114 B on the 8-bit values; from memory): neighbours at least
+        // 20 of 255 apart.
+        let grey: Vec<f64> = CLASS_FILLS
+            .iter()
+            .map(|c| 0.299 * f64::from(c.0) + 0.587 * f64::from(c.1) + 0.114 * f64::from(c.2))
+            .collect();
+        for w in grey.windows(2) {
+            assert!(w[0] - w[1] >= 20.0, "{grey:?}");
+        }
     }
 
     #[test]

@@ -4,13 +4,15 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, VPos};
 
 use super::toolkit::{
-    LABEL, TICK, anchored, band_polygon, configure_axes, draw_marker, draw_pathway_legend,
-    draw_styled_line, finish, finite_all, legend_height, legend_layout, nice_range, shorten,
-    year_range, year_ticks,
+    LABEL, TICK, anchored, configure_axes, draw_band, draw_marker, draw_pathway_legend,
+    draw_styled_line, finish, finite_all, legend_height, legend_layout, shorten, year_range,
+    year_ticks,
 };
 use super::{FULL_WIDTH_PX, FigResult, Figure, Placement, THIRD_WIDTH_PX, err};
 use crate::report::fmt;
-use crate::report::model::{CalcUnit, CalcificationOutlook, PathwayInfo, ReportModel, SiteReport};
+use crate::report::model::{
+    CalcPoint, CalcUnit, CalcificationOutlook, PathwayInfo, ReportModel, SiteReport,
+};
 use crate::report::palette::{self, Marker};
 
 /// Calcification outlook of one relationship: median per pathway with a 25–75 % band; open
@@ -20,42 +22,19 @@ use crate::report::palette::{self, Marker};
 pub fn calcification_chart(
     model: &ReportModel,
     c: &CalcificationOutlook,
+    (y0, y1): (f64, f64),
     name: &str,
 ) -> FigResult<Option<Figure>> {
     let count = model.pathways.len();
-    let mut series = Vec::new();
-    for (k, p) in model.pathways.iter().enumerate() {
-        if let Some(s) = c.series.iter().find(|s| s.pathway == p.id) {
-            let pts: Vec<_> = s.points.iter().filter(|pt| finite_all(&pt.value)).collect();
-            if !pts.is_empty() {
-                series.push((k, p, pts));
-            }
-        }
-    }
+    let series = finite_series(model, c);
     if series.is_empty() {
         return Ok(None);
     }
-    let mut lo = f64::INFINITY;
-    let mut hi = f64::NEG_INFINITY;
-    for (_, _, pts) in &series {
-        for p in pts {
-            lo = lo.min(p.value.p25);
-            hi = hi.max(p.value.p75);
-        }
-    }
-    let reference = match c.unit {
-        CalcUnit::PercentChange => Some(0.0),
-        CalcUnit::KgCaco3PerM2Year => c.baseline.filter(|b| b.is_finite()),
-    };
-    if let Some(r) = reference {
-        lo = lo.min(r);
-        hi = hi.max(r);
-    }
+    let reference = reference_line(c);
     let step = match c.unit {
         CalcUnit::PercentChange => 10.0,
         CalcUnit::KgCaco3PerM2Year => 0.5,
     };
-    let (y0, y1) = nice_range(lo, hi, step);
     let (x0, x1) = year_range(
         series
             .iter()
@@ -115,11 +94,7 @@ pub fn calcification_chart(
                 .iter()
                 .map(|p| (f64::from(p.year), p.value.p25))
                 .collect();
-            root.draw(&Polygon::new(
-                band_polygon(&chart, &u, &l),
-                style.colour.mix(0.16).filled(),
-            ))
-            .map_err(err)?;
+            draw_band(&root, &chart, &u, &l, style.colour, 0.16)?;
         }
         for (k, _, pts) in &series {
             let style = palette::pathway_style(*k, count);
@@ -150,6 +125,53 @@ pub fn calcification_chart(
         Placement::Third,
         h,
     )))
+}
+
+/// The pathways of a relationship with their finite points, in pathway order.
+fn finite_series<'a>(
+    model: &'a ReportModel,
+    c: &'a CalcificationOutlook,
+) -> Vec<(usize, &'a PathwayInfo, Vec<&'a CalcPoint>)> {
+    let mut series = Vec::new();
+    for (k, p) in model.pathways.iter().enumerate() {
+        if let Some(s) = c.series.iter().find(|s| s.pathway == p.id) {
+            let pts: Vec<_> = s.points.iter().filter(|pt| finite_all(&pt.value)).collect();
+            if !pts.is_empty() {
+                series.push((k, p, pts));
+            }
+        }
+    }
+    series
+}
+
+/// The present-day level drawn as a grey line: no change, or the baseline rate.
+fn reference_line(c: &CalcificationOutlook) -> Option<f64> {
+    match c.unit {
+        CalcUnit::PercentChange => Some(0.0),
+        CalcUnit::KgCaco3PerM2Year => c.baseline.filter(|b| b.is_finite()),
+    }
+}
+
+/// Lowest and highest value a relationship's panel shows (25–75 % bands and the reference
+/// line); `None` without a finite point.
+pub(super) fn calc_extent(model: &ReportModel, c: &CalcificationOutlook) -> Option<(f64, f64)> {
+    let series = finite_series(model, c);
+    if series.is_empty() {
+        return None;
+    }
+    let mut lo = f64::INFINITY;
+    let mut hi = f64::NEG_INFINITY;
+    for (_, _, pts) in &series {
+        for p in pts {
+            lo = lo.min(p.value.p25);
+            hi = hi.max(p.value.p75);
+        }
+    }
+    if let Some(r) = reference_line(c) {
+        lo = lo.min(r);
+        hi = hi.max(r);
+    }
+    Some((lo, hi))
 }
 
 /// The legend of a site's calcification panels: one sample per pathway and, when any point is

@@ -5,7 +5,7 @@ use plotters::style::text_anchor::{HPos, VPos};
 
 use super::toolkit::{
     Area, Chart, LABEL, OMEGA_SHORT, TICK, anchored, draw_class_bands, draw_marker_styled,
-    draw_pathway_legend, finish, finite_all, legend_height, omega_range, right_margin, text_style,
+    draw_pathway_legend, finish, finite_all, legend_height, right_margin, text_style,
     wrap_two_lines,
 };
 use super::{FULL_WIDTH_PX, FigResult, Figure, Placement, err};
@@ -17,38 +17,20 @@ use crate::report::ranking::rank_sites;
 /// Most sites in one comparison chart; more sites are split over several charts.
 pub const SITES_PER_COMPARISON_CHART: usize = 6;
 
-/// Sites in ranking order with their rank (1 = first) and the common Ω_ar range of every
-/// horizon year (so that all comparison charts share one scale).
-fn ranked_sites(model: &ReportModel) -> (Vec<(usize, &SiteReport)>, (f64, f64)) {
-    let order = rank_sites(model);
-    let sites: Vec<(usize, &SiteReport)> = order
+/// Sites in ranking order with their rank (1 = first).
+fn ranked_sites(model: &ReportModel) -> Vec<(usize, &SiteReport)> {
+    rank_sites(model)
         .iter()
         .enumerate()
         .filter_map(|(rank, e)| model.sites.get(e.site).map(|s| (rank + 1, s)))
-        .collect();
-    let mut lo = f64::INFINITY;
-    let mut hi = f64::NEG_INFINITY;
-    for (_, site) in &sites {
-        let season = site.limiting_season().unwrap_or_default();
-        for p in &model.pathways {
-            for &year in &model.horizons {
-                if let Some(pt) = site.series(&p.id, season).and_then(|s| s.at(year))
-                    && finite_all(&pt.omega_ar)
-                {
-                    lo = lo.min(pt.omega_ar.p05);
-                    hi = hi.max(pt.omega_ar.p95);
-                }
-            }
-        }
-    }
-    (sites, omega_range(lo, hi, &model.thresholds))
+        .collect()
 }
 
 /// Dot-and-whisker charts of several sites, in ranking order, at most
-/// [`SITES_PER_COMPARISON_CHART`] sites each, one panel per horizon year, all on the same Ω_ar
-/// scale.
-pub fn comparison_charts(model: &ReportModel) -> FigResult<Vec<Figure>> {
-    let (sites, range) = ranked_sites(model);
+/// [`SITES_PER_COMPARISON_CHART`] sites each, one panel per horizon year, all on the report's
+/// Ω_ar axis `range`.
+pub fn comparison_charts(model: &ReportModel, range: (f64, f64)) -> FigResult<Vec<Figure>> {
+    let sites = ranked_sites(model);
     let chunks: Vec<&[(usize, &SiteReport)]> = sites.chunks(SITES_PER_COMPARISON_CHART).collect();
     let mut out = Vec::new();
     for (i, chunk) in chunks.iter().enumerate() {
@@ -65,12 +47,12 @@ pub fn comparison_charts(model: &ReportModel) -> FigResult<Vec<Figure>> {
 }
 
 /// The comparison's key figure: every site (up to [`SITES_PER_COMPARISON_CHART`], the best
-/// ranked) at the last horizon year, one taller panel.
-pub fn comparison_key_chart(model: &ReportModel) -> FigResult<Option<Figure>> {
+/// ranked) at the last horizon year, one taller panel, on the report's Ω_ar axis `range`.
+pub fn comparison_key_chart(model: &ReportModel, range: (f64, f64)) -> FigResult<Option<Figure>> {
     let Some(&last) = model.horizons.last() else {
         return Ok(None);
     };
-    let (sites, range) = ranked_sites(model);
+    let sites = ranked_sites(model);
     let shown = &sites[..sites.len().min(SITES_PER_COMPARISON_CHART)];
     comparison_chart(
         model,

@@ -1,12 +1,12 @@
 //! (b) Fan charts: one pathway's Ω_ar ensemble in the limiting season over the years; also the
-//! series extraction and the shared Ω_ar scale used by the key figure.
+//! series extraction the key figure and the shared scales use.
 
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, VPos};
 
 use super::toolkit::{
-    OMEGA_SHORT, TITLE, anchored, band_polygon, configure_axes, draw_class_bands, draw_marker,
-    finish, finite_all, omega_range, right_margin, year_range, year_ticks,
+    OMEGA_SHORT, TITLE, anchored, configure_axes, draw_band, draw_class_bands, draw_marker, finish,
+    finite_all, right_margin, year_range, year_ticks,
 };
 use super::{FigResult, Figure, HALF_WIDTH_PX, Placement, err};
 use crate::report::fmt;
@@ -34,29 +34,14 @@ pub(super) fn fan_data(site: &SiteReport, pathway: &str, season: &str) -> Option
     }
 }
 
-/// Ω_ar range over every pathway of a site in its limiting season (shared by all fan charts so
-/// that panels can be compared at a glance).
-pub(super) fn site_omega_extent(model: &ReportModel, site: &SiteReport) -> (f64, f64) {
-    let season = site.limiting_season().unwrap_or_default();
-    let mut lo = f64::INFINITY;
-    let mut hi = f64::NEG_INFINITY;
-    for p in &model.pathways {
-        if let Some(d) = fan_data(site, &p.id, season) {
-            for q in &d.q {
-                lo = lo.min(q.p05);
-                hi = hi.max(q.p95);
-            }
-        }
-    }
-    omega_range(lo, hi, &model.thresholds)
-}
-
 /// Fan chart of Ω_ar in the limiting season under one pathway: median line, 25–75 % and 5–95 %
-/// bands, over the threshold classes.
+/// bands, over the threshold classes, on the report's Ω_ar axis `y0..y1` (the same in every
+/// panel and at every site, so that they can be compared at a glance).
 pub fn fan_chart(
     model: &ReportModel,
     site: &SiteReport,
     k: usize,
+    (y0, y1): (f64, f64),
     prefix: &str,
 ) -> FigResult<Option<Figure>> {
     let Some(pathway) = model.pathways.get(k) else {
@@ -70,7 +55,6 @@ pub fn fan_chart(
     };
     let style = palette::pathway_style(k, model.pathways.len());
     let (w, h) = (HALF_WIDTH_PX, 176u32);
-    let (y0, y1) = site_omega_extent(model, site);
     let (x0, x1) = year_range(data.years.iter().map(|y| *y as i32));
     let mut svg = String::new();
     {
@@ -123,16 +107,8 @@ pub fn fan_chart(
             .zip(&data.q)
             .map(|(y, q)| (*y, q.p25))
             .collect();
-        root.draw(&Polygon::new(
-            band_polygon(&chart, &outer_u, &outer_l),
-            c.mix(0.22).filled(),
-        ))
-        .map_err(err)?;
-        root.draw(&Polygon::new(
-            band_polygon(&chart, &inner_u, &inner_l),
-            c.mix(0.45).filled(),
-        ))
-        .map_err(err)?;
+        draw_band(&root, &chart, &outer_u, &outer_l, c, 0.22)?;
+        draw_band(&root, &chart, &inner_u, &inner_l, c, 0.45)?;
         let median: Vec<(i32, i32)> = data
             .years
             .iter()

@@ -15,6 +15,7 @@ mod calcification;
 mod comparison;
 mod fan;
 mod overview;
+mod scales;
 mod seasonal;
 mod toolkit;
 
@@ -162,21 +163,25 @@ impl ReportFigures {
 
 /// Draws every figure of the report.
 pub fn build_all(model: &ReportModel) -> FigResult<ReportFigures> {
+    let scales = scales::Scales::of(model);
     let mut figs = ReportFigures::default();
     for (i, site) in model.sites.iter().enumerate() {
         let prefix = format!("s{i}");
         let mut sf = SiteFigures {
-            seasonal: seasonal_cycle(site, &prefix)?,
-            overview: outlook_overview(model, site, &prefix)?,
+            seasonal: seasonal_cycle(site, scales.seasonal, &prefix)?,
+            overview: outlook_overview(model, site, scales.omega, &prefix)?,
             ..SiteFigures::default()
         };
         for (k, p) in model.pathways.iter().enumerate() {
-            if let Some(f) = fan_chart(model, site, k, &prefix)? {
+            if let Some(f) = fan_chart(model, site, k, scales.omega, &prefix)? {
                 sf.fans.push((p.id.clone(), f));
             }
         }
         for (k, c) in site.calcification.iter().enumerate() {
-            if let Some(f) = calcification_chart(model, c, &format!("{prefix}-calc{k}"))? {
+            let Some(axis) = scales.calcification(&c.relationship, c.unit) else {
+                continue;
+            };
+            if let Some(f) = calcification_chart(model, c, axis, &format!("{prefix}-calc{k}"))? {
                 sf.calcification.push(f);
             }
         }
@@ -186,8 +191,8 @@ pub fn build_all(model: &ReportModel) -> FigResult<ReportFigures> {
         figs.sites.push(sf);
     }
     if model.sites.len() > 1 {
-        figs.comparison = comparison_charts(model)?;
-        figs.comparison_key = comparison_key_chart(model)?;
+        figs.comparison = comparison_charts(model, scales.omega)?;
+        figs.comparison_key = comparison_key_chart(model, scales.omega)?;
     }
     Ok(figs)
 }

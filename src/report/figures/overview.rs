@@ -2,9 +2,9 @@
 
 use plotters::prelude::*;
 
-use super::fan::{FanData, fan_data, site_omega_extent};
+use super::fan::{FanData, fan_data};
 use super::toolkit::{
-    OMEGA_LABEL, band_polygon, configure_axes, draw_class_bands, draw_marker, draw_pathway_legend,
+    OMEGA_LABEL, configure_axes, draw_band, draw_class_bands, draw_marker, draw_pathway_legend,
     draw_styled_line, finish, legend_height, right_margin, year_range, year_ticks,
 };
 use super::{FULL_WIDTH_PX, FigResult, Figure, Placement, err};
@@ -13,10 +13,11 @@ use crate::report::model::{PathwayInfo, ReportModel, SiteReport};
 use crate::report::palette;
 
 /// The key figure: all pathways' medians with 25–75 % bands in the limiting season, over the
-/// labelled threshold classes.
+/// labelled threshold classes, on the report's Ω_ar axis `y0..y1`.
 pub fn outlook_overview(
     model: &ReportModel,
     site: &SiteReport,
+    (y0, y1): (f64, f64),
     prefix: &str,
 ) -> FigResult<Option<Figure>> {
     let Some(season) = site.limiting_season() else {
@@ -35,7 +36,6 @@ pub fn outlook_overview(
     let names: Vec<&str> = series.iter().map(|(_, p, _)| p.label.as_str()).collect();
     let legend_h = legend_height(&names, FULL_WIDTH_PX as i32 - 60);
     let (w, h) = (FULL_WIDTH_PX, 215 + legend_h as u32);
-    let (y0, y1) = site_omega_extent(model, site);
     let (x0, x1) = year_range(
         series
             .iter()
@@ -69,11 +69,7 @@ pub fn outlook_overview(
             let style = palette::pathway_style(*k, count);
             let u: Vec<(f64, f64)> = d.years.iter().zip(&d.q).map(|(y, q)| (*y, q.p75)).collect();
             let l: Vec<(f64, f64)> = d.years.iter().zip(&d.q).map(|(y, q)| (*y, q.p25)).collect();
-            root.draw(&Polygon::new(
-                band_polygon(&chart, &u, &l),
-                style.colour.mix(0.16).filled(),
-            ))
-            .map_err(err)?;
+            draw_band(&root, &chart, &u, &l, style.colour, 0.16)?;
         }
         for (k, _, d) in &series {
             let style = palette::pathway_style(*k, count);

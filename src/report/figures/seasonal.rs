@@ -3,9 +3,7 @@
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, VPos};
 
-use super::toolkit::{
-    Area, LABEL, OMEGA_SHORT, TICK, anchored, finish, nice_range, nice_ticks, text_style,
-};
+use super::toolkit::{Area, LABEL, OMEGA_SHORT, TICK, anchored, finish, nice_ticks, text_style};
 use super::{FULL_WIDTH_PX, FigResult, Figure, Placement, err};
 use crate::report::fmt;
 use crate::report::model::{SeasonBaseline, SiteReport, Stat};
@@ -13,11 +11,41 @@ use crate::report::palette;
 
 /// One panel of the seasonal cycle: axis title, the statistic it shows, the step its axis range
 /// snaps to and the least decimals of its tick labels.
-type PanelSpec = (&'static str, fn(&SeasonBaseline) -> Stat, f64, usize);
+pub(super) type PanelSpec = (&'static str, fn(&SeasonBaseline) -> Stat, f64, usize);
+
+/// The three panels, top to bottom.
+pub(super) const PANELS: [PanelSpec; 3] = [
+    (OMEGA_SHORT, |b| b.omega_ar, 0.1, 2),
+    ("pH (total scale)", |b| b.ph_t, 0.02, 2),
+    ("Temperature (°C)", |b| b.temp_c, 0.5, 1),
+];
+
+/// Lowest and highest value a panel shows for these seasons (range and ±1 sd); infinite when
+/// none is finite.
+pub(super) fn panel_extent(seasons: &[SeasonBaseline], spec: PanelSpec) -> (f64, f64) {
+    let stats: Vec<Stat> = seasons.iter().map(spec.1).collect();
+    let lo = stats
+        .iter()
+        .map(|s| s.min.min(s.mean - s.sd))
+        .filter(|v| v.is_finite());
+    let hi = stats
+        .iter()
+        .map(|s| s.max.max(s.mean + s.sd))
+        .filter(|v| v.is_finite());
+    (
+        lo.fold(f64::INFINITY, f64::min),
+        hi.fold(f64::NEG_INFINITY, f64::max),
+    )
+}
 
 /// Seasonal cycle of Ω_ar, pH_T and temperature from the records: three stacked panels with
-/// the mean (dot), ±1 sd (thick bar) and the range (thin bar) per season.
-pub fn seasonal_cycle(site: &SiteReport, prefix: &str) -> FigResult<Option<Figure>> {
+/// the mean (dot), ±1 sd (thick bar) and the range (thin bar) per season, each on the report's
+/// shared axis of its quantity (`axes`, in [`PANELS`] order).
+pub fn seasonal_cycle(
+    site: &SiteReport,
+    axes: [(f64, f64); 3],
+    prefix: &str,
+) -> FigResult<Option<Figure>> {
     let seasons = &site.baseline;
     if seasons.is_empty() {
         return Ok(None);
@@ -31,13 +59,8 @@ pub fn seasonal_cycle(site: &SiteReport, prefix: &str) -> FigResult<Option<Figur
         let (legend, body) = root.split_vertically(24);
         draw_seasonal_legend(&root, &legend)?;
         let panels = body.split_evenly((3, 1));
-        let specs: [PanelSpec; 3] = [
-            (OMEGA_SHORT, |b| b.omega_ar, 0.1, 2),
-            ("pH (total scale)", |b| b.ph_t, 0.02, 2),
-            ("Temperature (°C)", |b| b.temp_c, 0.5, 1),
-        ];
-        for (i, (panel, spec)) in panels.iter().zip(specs).enumerate() {
-            draw_panel(&root, panel, seasons, spec, i)?;
+        for (i, ((panel, spec), axis)) in panels.iter().zip(PANELS).zip(axes).enumerate() {
+            draw_panel(&root, panel, seasons, spec, axis, i)?;
         }
         root.present().map_err(err)?;
     }
@@ -57,28 +80,18 @@ pub fn seasonal_cycle(site: &SiteReport, prefix: &str) -> FigResult<Option<Figur
     )))
 }
 
-/// Panel `i` (0 = top; the last one carries the season names).
+/// Panel `i` (0 = top; the last one carries the season names) on the axis `y0..y1`.
 fn draw_panel(
     root: &Area<'_>,
     panel: &Area<'_>,
     seasons: &[SeasonBaseline],
-    (desc, get, step, dec): PanelSpec,
+    (desc, get, _, dec): PanelSpec,
+    (y0, y1): (f64, f64),
     i: usize,
 ) -> FigResult<()> {
     let n = seasons.len();
     let colour = palette::SEASONAL_COLOURS[i];
     let stats: Vec<Stat> = seasons.iter().map(get).collect();
-    let lo = stats
-        .iter()
-        .map(|s| s.min.min(s.mean - s.sd))
-        .filter(|v| v.is_finite());
-    let hi = stats
-        .iter()
-        .map(|s| s.max.max(s.mean + s.sd))
-        .filter(|v| v.is_finite());
-    let lo = lo.fold(f64::INFINITY, f64::min);
-    let hi = hi.fold(f64::NEG_INFINITY, f64::max);
-    let (y0, y1) = nice_range(lo, hi, step);
     // Ticks chosen here (three or four per panel) rather than by plotters, whose choice
     // can leave a narrow panel with a single label.
     let (ticks, tick_decimals) = nice_ticks(y0, y1, 4);

@@ -245,6 +245,12 @@ pub(super) fn draw_styled_line(
     if points.len() < 2 {
         return Ok(());
     }
+    // A white edge under the line keeps it readable over the bands and the class shading.
+    root.draw(&PathElement::new(
+        points.clone(),
+        WHITE.stroke_width(width + 2),
+    ))
+    .map_err(err)?;
     let shape = style.colour.stroke_width(width);
     match style.dash {
         Dash::Solid => root.draw(&PathElement::new(points, shape)).map_err(err),
@@ -410,6 +416,29 @@ pub(super) fn configure_axes(
         .x_desc(x_desc)
         .y_desc(y_desc)
         .draw()
+        .map_err(err)
+}
+
+/// Fills the band between two curves (data coordinates, same x in the same order) with
+/// `colour` at `opacity` and outlines it thinly in the same colour, so that its edge stays visible
+/// over the class shading and in greyscale print.
+pub(super) fn draw_band(
+    root: &Area<'_>,
+    chart: &Chart<'_, '_>,
+    upper: &[(f64, f64)],
+    lower: &[(f64, f64)],
+    colour: RGBColor,
+    opacity: f64,
+) -> FigResult<()> {
+    let outline = band_polygon(chart, upper, lower);
+    if outline.len() < 3 {
+        return Ok(());
+    }
+    root.draw(&Polygon::new(outline.clone(), colour.mix(opacity).filled()))
+        .map_err(err)?;
+    let mut closed = outline.clone();
+    closed.extend(outline.first().copied());
+    root.draw(&PathElement::new(closed, colour.mix(0.7).stroke_width(1)))
         .map_err(err)
 }
 

@@ -69,6 +69,23 @@ fn sample_cells(s: &SampleRow) -> [String; 15] {
     ]
 }
 
+/// Which columns hold the same text in every row of a listing of more than one row: those are
+/// said once above the listing instead of repeated on every line. The line number, the date and
+/// the QC flags always stay in the listing.
+fn same_in_every_row(cells: &[[String; 15]]) -> [bool; 15] {
+    let mut same = [false; 15];
+    let Some((first, rest)) = cells.split_first() else {
+        return same;
+    };
+    if rest.is_empty() {
+        return same;
+    }
+    for (k, s) in same.iter_mut().enumerate().take(14).skip(2) {
+        *s = rest.iter().all(|row| row[k] == first[k]);
+    }
+    same
+}
+
 /// Appendix columns: (heading, unit line, right-aligned).
 const APPENDIX_COLUMNS: [(&str, &str, bool); 15] = [
     ("Line", "", true),
@@ -104,14 +121,18 @@ fn sample_group(file: &str, rows: &[&SampleRow]) -> Value {
             *w = (*w).max(c.chars().count());
         }
     }
-    // Every column but the last (the QC flags, which may wrap in their own cell) padded to a
-    // common width; returns [fixed-width part, flags].
+    let same = same_in_every_row(&cells);
+    // Every column but the last (the QC flags, which may wrap in their own cell) and those with
+    // the same value in every row padded to a common width; returns [fixed-width part, flags].
     let line = |items: &[&str]| -> [String; 2] {
         let mut out = String::new();
         for (k, item) in items.iter().enumerate().take(n - 1) {
+            if same[k] {
+                continue;
+            }
             let (_, _, right) = APPENDIX_COLUMNS[k];
             let pad = widths[k].saturating_sub(item.chars().count());
-            if k > 0 {
+            if !out.is_empty() {
                 out.push_str("  ");
             }
             if right {
@@ -145,11 +166,50 @@ fn sample_group(file: &str, rows: &[&SampleRow]) -> Value {
             })
         })
         .collect();
+    // The collapsed columns as one sentence: "Station LG1; p 2.5 dbar".
+    let same_text: Vec<String> = APPENDIX_COLUMNS
+        .iter()
+        .zip(cells.first().into_iter().flatten())
+        .zip(&same)
+        .filter(|(_, same)| **same)
+        .map(|(((head, unit, _), value), _)| match *unit {
+            "" | "total" => format!("{head} {value}"),
+            unit => format!("{head} {value} {unit}"),
+        })
+        .collect();
     json!({
         "file": file,
         "count": rows.len().to_string(),
+        "same": same_text,
         "header": [line(&heads), line(&units)],
         "lines": lines,
         "rows": structured,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn only_columns_equal_in_every_row_collapse() {
+        let row = |date: &str, t: &str| -> [String; 15] {
+            let mut r: [String; 15] = Default::default();
+            for (k, c) in r.iter_mut().enumerate() {
+                *c = format!("v{k}");
+            }
+            r[1] = date.to_string();
+            r[4] = t.to_string();
+            r
+        };
+        let two = [row("2024-01-01", "27.0"), row("2024-01-02", "27.5")];
+        let same = same_in_every_row(&two);
+        // Line (0) and date (1) and the QC flags (14) never collapse; T (4) differs; the
+        // other eleven columns (2, 3, 5–13) are equal in both rows.
+        let collapsed: Vec<usize> = (0..15).filter(|k| same[*k]).collect();
+        assert_eq!(collapsed, vec![2, 3, 5, 6, 7, 8, 9, 10, 11, 12, 13]);
+        // One row says nothing about what repeats.
+        assert!(same_in_every_row(&two[..1]).iter().all(|s| !s));
+        assert!(same_in_every_row(&[]).iter().all(|s| !s));
+    }
 }

@@ -15,7 +15,7 @@ use serde_json::{Value, json};
 
 use super::figures::{Figure, ReportFigures, SiteFigures};
 use super::fmt;
-use super::model::{CrossingYear, Quantiles, ReportModel, ReportTime};
+use super::model::{CrossingYear, Quantiles, ReportModel, ReportTime, Setting};
 use super::palette;
 
 /// Version of the embedded typesetter, shown in the Reproducibility section.
@@ -58,12 +58,13 @@ pub fn build(model: &ReportModel, figures: &ReportFigures, dates: Dates) -> Valu
             })
         })
         .collect();
+    let shared = shared_settings(model);
     let empty = SiteFigures::default();
     let sites: Vec<Value> = model
         .sites
         .iter()
         .enumerate()
-        .map(|(i, s)| site::site_view(model, s, figures.sites.get(i).unwrap_or(&empty)))
+        .map(|(i, s)| site::site_view(model, s, &shared, figures.sites.get(i).unwrap_or(&empty)))
         .collect();
     let comparison = if model.sites.len() > 1 {
         Some(comparison::comparison_view(model, figures))
@@ -71,6 +72,14 @@ pub fn build(model: &ReportModel, figures: &ReportFigures, dates: Dates) -> Valu
         None
     };
     let repro = &model.reproducibility;
+    // Reproducibility lists only what Methods and the site sections do not already show.
+    let shown_elsewhere = |s: &Setting| {
+        model
+            .sites
+            .iter()
+            .flat_map(|site| &site.methods.projection)
+            .any(|p| p.name == s.name && p.value == s.value)
+    };
     let kind = if model.sites.len() > 1 {
         "comparison"
     } else {
@@ -93,6 +102,7 @@ pub fn build(model: &ReportModel, figures: &ReportFigures, dates: Dates) -> Valu
         },
         "horizons": model.horizons.iter().map(|y| y.to_string()).collect::<Vec<_>>(),
         "pathways": pathways,
+        "projection_settings": shared.iter().map(|s| setting_view(s)).collect::<Vec<_>>(),
         "sites": sites,
         "comparison": comparison,
         "extra_limitations": model.extra_limitations,
@@ -104,8 +114,8 @@ pub fn build(model: &ReportModel, figures: &ReportFigures, dates: Dates) -> Valu
             "inputs": repro.inputs.iter().map(|f| json!({
                 "role": f.role, "path": f.path, "sha256": f.sha256, "bytes": f.bytes.to_string(),
             })).collect::<Vec<_>>(),
-            "settings": repro.settings.iter().map(|s| json!({"name": s.name, "value": s.value}))
-                .collect::<Vec<_>>(),
+            "settings": repro.settings.iter().filter(|s| !shown_elsewhere(s))
+                .map(setting_view).collect::<Vec<_>>(),
             "timestamp": date.iso_datetime(),
         },
     })
@@ -120,6 +130,31 @@ fn last_sample_date(model: &ReportModel) -> Option<&str> {
         .map(|s| s.coverage.last_date.as_str())
         .filter(|d| !d.is_empty())
         .max()
+}
+
+/// The projection settings every site has with the same value, in the first site's order:
+/// printed once under Methods rather than once per site.
+fn shared_settings(model: &ReportModel) -> Vec<&Setting> {
+    let Some((first, rest)) = model.sites.split_first() else {
+        return Vec::new();
+    };
+    first
+        .methods
+        .projection
+        .iter()
+        .filter(|s| {
+            rest.iter().all(|site| {
+                site.methods
+                    .projection
+                    .iter()
+                    .any(|p| p.name == s.name && p.value == s.value)
+            })
+        })
+        .collect()
+}
+
+fn setting_view(s: &Setting) -> Value {
+    json!({ "name": s.name, "value": s.value })
 }
 
 fn pathway_label<'a>(model: &'a ReportModel, id: &'a str) -> &'a str {

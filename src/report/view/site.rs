@@ -8,13 +8,18 @@ use super::{crossing_text, fig, missing_cell, pathway_label, quant_cell};
 use crate::report::figures::{Figure, SiteFigures};
 use crate::report::fmt;
 use crate::report::model::{
-    CalcUnit, CalcificationOutlook, QcLevel, ReportModel, SiteReport, Stat,
+    CalcUnit, CalcificationOutlook, QcLevel, ReportModel, Setting, SiteReport, Stat,
 };
 use crate::report::palette;
 use crate::report::ranking::limiting_omega;
 
 /// The view of one site (see `templates/README.md` for its fields).
-pub(super) fn site_view(model: &ReportModel, site: &SiteReport, figs: &SiteFigures) -> Value {
+pub(super) fn site_view(
+    model: &ReportModel,
+    site: &SiteReport,
+    shared: &[&Setting],
+    figs: &SiteFigures,
+) -> Value {
     let coords = match (site.latitude, site.longitude) {
         (Some(lat), Some(lon)) => Some(format!(
             "{}, {}",
@@ -62,9 +67,10 @@ pub(super) fn site_view(model: &ReportModel, site: &SiteReport, figs: &SiteFigur
             "chemistry": site.methods.chemistry.iter().map(|m| json!({
                 "quantity": m.quantity, "method": m.method, "citation": m.citation,
             })).collect::<Vec<_>>(),
-            "projection": site.methods.projection.iter().map(|s| json!({
-                "name": s.name, "value": s.value,
-            })).collect::<Vec<_>>(),
+            // Only the settings this site does not share with every other site.
+            "projection": site.methods.projection.iter().filter(|s| !shared.iter().any(|x| {
+                x.name == s.name && x.value == s.value
+            })).map(|s| json!({ "name": s.name, "value": s.value })).collect::<Vec<_>>(),
             "notes": site.methods.notes,
         },
         "figures": {
