@@ -427,7 +427,6 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
         probabilities,
         calcification,
         local_scenarios,
-        thermal: None,
         methods,
         samples,
     })

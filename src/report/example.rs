@@ -195,7 +195,6 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
                 reference_median: Some(3.35),
             }],
         }],
-        thermal: None,
         methods: example_methods(),
         samples: example_samples(),
     };

@@ -214,11 +214,6 @@ pub struct SiteReport {
     pub probabilities: Vec<BelowProbability>,
     pub calcification: Vec<CalcificationOutlook>,
     pub local_scenarios: Vec<LocalScenario>,
-    /// Thermal stress is not computed yet: the report says so among its limitations and shows
-    /// no thermal-stress table. The field holds nothing (no value of this type exists) and is
-    /// not written out; it stays only while the model builder still sets it to `None`.
-    #[serde(skip)]
-    pub thermal: Option<std::convert::Infallible>,
     pub methods: Methods,
     /// Every sample for the appendix (only used when the appendix is requested).
     pub samples: Vec<SampleRow>,

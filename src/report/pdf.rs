@@ -502,7 +502,7 @@ mod tests {
     fn thermal_stress_is_listed_as_not_computed_and_has_no_table() {
         let r = render_example(1);
         let text = text_of(&r.pdf);
-        assert!(text.contains("Thermal stress: marine heatwaves and coral bleaching are not"));
+        assert!(text.contains("Thermal stress: Degree Heating Weeks from the site"));
         assert!(text.contains("computed in this report"));
         // No thermal-stress section or table: the phrase appears once, in the limitations.
         assert_eq!(text.matches("Thermal stress").count(), 1, "{text}");
