@@ -163,6 +163,21 @@ fn field_like_lagoon_survey_checks_and_projects_with_few_right_findings() {
     let table = std::fs::read_to_string(dir.path().join("outlook.csv")).unwrap_or_default();
     assert!(table.contains("SSP2-4.5,"), "{table}");
 
+    // report runs end to end on it too, and lists what was left out of the outlook and why
+    // (the rows below the salinity floor, among the findings and in the per-sample appendix).
+    let report = run(
+        &["report", "site.toml", "--appendix", "-o", "survey.pdf"],
+        dir.path(),
+    );
+    let rerr = String::from_utf8_lossy(&report.stderr).to_string();
+    assert_eq!(report.status.code(), Some(0), "report refused:\n{rerr}");
+    let pdf = std::fs::read(dir.path().join("survey.pdf")).unwrap_or_default();
+    let text = pdf_extract::extract_text_from_mem(&pdf).unwrap_or_default();
+    let flat: String = text.split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(flat.contains("below the site's floor of 5"), "{flat}");
+    assert!(flat.contains("left out of the baseline and the outlook"), "{flat}");
+    assert!(flat.contains("brackish"), "{flat}");
+
     // --verbose lists every row finding.
     let verbose = run(&["check", "site.toml", "--verbose"], dir.path());
     let verr = String::from_utf8_lossy(&verbose.stderr).to_string();
