@@ -5,6 +5,7 @@
 //! `python3 tests/reference/time_pyco2sys.py` (PyCO2SYS from PyPI).
 
 use calcisite::chem::{Conditions, Constants, Input, MethodSet, solve_pair};
+use calcisite::cli::solve::solve_stream;
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
 use std::hint::black_box;
 
@@ -59,9 +60,36 @@ fn bench_solve(c: &mut Criterion) {
     group.finish();
 }
 
+/// The whole `solve` command on an in-memory CSV file (read, parse, solve, format, write),
+/// all cores. Target for the command: ≥ 1,500,000 rows/s on the 2-core project machine
+/// (`python3 benches/scale.py solve` measures the binary on a file).
+fn bench_solve_csv(c: &mut Criterion) {
+    let mut csv = String::from("date,station,temp_c,salinity,depth_m,ta,dic,silicate,phosphate\n");
+    for (i, (cond, ta, dic)) in samples(100_000).iter().enumerate() {
+        csv.push_str(&format!(
+            "2024-01-01,S{},{:.3},{:.3},{},{ta:.2},{dic:.2},2.0,0.2\n",
+            i % 7,
+            cond.temp_c,
+            cond.salinity,
+            i % 20
+        ));
+    }
+    let m = MethodSet::default();
+    let mut out = Vec::with_capacity(csv.len() * 3);
+    let mut group = c.benchmark_group("cli");
+    group.throughput(Throughput::Elements(100_000));
+    group.bench_function("solve_stream_csv_rows", |b| {
+        b.iter(|| {
+            out.clear();
+            black_box(solve_stream(csv.as_bytes(), &mut out, &m))
+        })
+    });
+    group.finish();
+}
+
 criterion_group! {
     name = benches;
     config = Criterion::default().sample_size(20);
-    targets = bench_solve
+    targets = bench_solve, bench_solve_csv
 }
 criterion_main!(benches);

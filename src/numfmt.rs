@@ -54,28 +54,50 @@ pub fn push_fixed(buf: &mut String, v: f64, decimals: usize) -> bool {
     if !v.is_finite() {
         return false;
     }
-    if let (Some(&scale), Some(&unit)) = (POW10.get(decimals), POW10_U64.get(decimals)) {
-        let p = (v * scale).abs();
-        if p < FAST_LIMIT {
-            // Truncation is the floor for 0 ≤ p < 2^52, and exact.
-            let floor = p as u64;
-            let frac = p - floor as f64; // exact below 2^52
-            // The exact product v·10^d differs from p by at most half an ulp of p (10^d is
-            // exact); away from a half by more than one ulp both round alike.
-            let margin = p * f64::EPSILON + f64::MIN_POSITIVE;
-            if (frac - 0.5).abs() > margin {
-                let n = floor + u64::from(frac > 0.5);
-                push_scaled(buf, n, decimals, unit, v < 0.0 && n != 0);
-                return true;
+    let mut digits = [b'0'; 40];
+    let fast = scale_and_round(v, decimals).and_then(|s| {
+        let slot = digits.get_mut(..s.len())?;
+        s.fill(slot);
+        // Only ASCII digits, '.' and '-' were written.
+        std::str::from_utf8(slot).ok()
+    });
+    match fast {
+        Some(text) => buf.push_str(text),
+        None => push_exact(buf, v, decimals),
+    }
+    true
+}
+
+/// [`push_fixed`] into a byte buffer (for writers that assemble CSV bytes directly): the
+/// same bytes, made in place at the end of `buf`.
+pub fn push_fixed_bytes(buf: &mut Vec<u8>, v: f64, decimals: usize) -> bool {
+    if !v.is_finite() {
+        return false;
+    }
+    match scale_and_round(v, decimals) {
+        Some(s) => {
+            let start = buf.len();
+            buf.resize(start + s.len(), b'0');
+            if let Some(slot) = buf.get_mut(start..) {
+                s.fill(slot);
             }
         }
+        None => {
+            let mut s = String::new();
+            push_exact(&mut s, v, decimals);
+            buf.extend_from_slice(s.as_bytes());
+        }
     }
+    true
+}
+
+/// The exact path: the standard library's formatter, without a sign on a zero result.
+fn push_exact(buf: &mut String, v: f64, decimals: usize) {
     let s = format!("{v:.decimals$}");
     match s.strip_prefix('-') {
         Some(rest) if rest.bytes().all(|b| b == b'0' || b == b'.') => buf.push_str(rest),
         _ => buf.push_str(&s),
     }
-    true
 }
 
 /// `v` with exactly `decimals` decimals, or `None` when `v` is NaN or infinite.
@@ -102,41 +124,124 @@ pub fn tidy(v: f64) -> String {
     }
 }
 
-/// Append `n / 10^decimals` (`unit` = 10^decimals) with exactly `decimals` decimals, and a
-/// minus sign first when `negative`: the digits are made in a small array and appended at
-/// once.
-fn push_scaled(buf: &mut String, n: u64, decimals: usize, unit: u64, negative: bool) {
-    // u64 has at most 20 digits; with a sign, a point and leading zeros of a fraction of at
-    // most 15 digits, 40 bytes always suffice.
-    let mut out = [b'0'; 40];
-    let mut pos = out.len();
-    let mut put = |d: u8, pos: &mut usize| {
-        *pos = pos.saturating_sub(1);
-        if let Some(slot) = out.get_mut(*pos) {
-            *slot = d;
-        }
+/// A value rounded to `decimals` decimals: `int.frac`, `frac` < 10^decimals.
+struct Scaled {
+    int: u64,
+    frac: u64,
+    decimals: usize,
+    negative: bool,
+}
+
+/// Finite `v` scaled by 10^decimals and rounded in floating point, or `None` when the scaled
+/// value is too large or too close to a half to be sure of the rounding (the caller then
+/// takes the exact path).
+fn scale_and_round(v: f64, decimals: usize) -> Option<Scaled> {
+    let scale = *POW10.get(decimals)?;
+    let unit = *POW10_U64.get(decimals)?;
+    let p = (v * scale).abs();
+    if p >= FAST_LIMIT {
+        return None;
+    }
+    // Truncation is the floor for 0 ≤ p < 2^52, and exact.
+    let floor = p as u64;
+    let frac = p - floor as f64; // exact below 2^52
+    // The exact product v·10^d differs from p by at most half an ulp of p (10^d is exact);
+    // away from a half by more than one ulp both round alike.
+    let margin = p * f64::EPSILON + f64::MIN_POSITIVE;
+    if (frac - 0.5).abs() <= margin {
+        return None;
+    }
+    let n = floor + u64::from(frac > 0.5);
+    // The decimals the program writes most divide by a constant (a multiplication instead
+    // of a hardware division).
+    let (int, frac) = match decimals {
+        4 => (n / 10_000, n % 10_000),
+        5 => (n / 100_000, n % 100_000),
+        6 => (n / 1_000_000, n % 1_000_000),
+        _ => (n / unit, n % unit),
     };
-    let (mut int, mut frac) = (n / unit, n % unit);
-    for _ in 0..decimals {
-        put(b'0' + (frac % 10) as u8, &mut pos);
-        frac /= 10;
+    Some(Scaled {
+        int,
+        frac,
+        decimals,
+        negative: v < 0.0 && n != 0,
+    })
+}
+
+/// "00", "01", … "99": two digits per table look-up halve the divisions.
+const PAIRS: [u8; 200] = {
+    let mut t = [0u8; 200];
+    let mut i = 0;
+    while i < 100 {
+        t[2 * i] = b'0' + (i / 10) as u8;
+        t[2 * i + 1] = b'0' + (i % 10) as u8;
+        i += 1;
     }
-    if decimals > 0 {
-        put(b'.', &mut pos);
+    t
+};
+
+impl Scaled {
+    /// Bytes of the text: sign, integer digits (at least one), point and decimals.
+    fn len(&self) -> usize {
+        // int < 2^52 < 10^16: it has as many digits as powers of ten up to it (at least 1).
+        let int_digits = POW10_U64.iter().take_while(|&&p| p <= self.int).count();
+        usize::from(self.negative)
+            + int_digits.max(1)
+            + if self.decimals > 0 {
+                1 + self.decimals
+            } else {
+                0
+            }
     }
-    loop {
-        put(b'0' + (int % 10) as u8, &mut pos);
-        int /= 10;
-        if int == 0 {
-            break;
+
+    /// Write the text into `slot` (exactly [`Scaled::len`] bytes), right to left.
+    fn fill(&self, slot: &mut [u8]) {
+        let width = slot.len();
+        let mut pos = width;
+        let mut put = |b: u8| {
+            pos = pos.saturating_sub(1);
+            if let Some(s) = slot.get_mut(pos) {
+                *s = b;
+            }
+            pos
+        };
+        let pair = |v: u64| {
+            let i = 2 * v as usize;
+            (
+                PAIRS.get(i).copied().unwrap_or(b'0'),
+                PAIRS.get(i + 1).copied().unwrap_or(b'0'),
+            )
+        };
+        let (mut int, mut frac) = (self.int, self.frac);
+        let mut left = self.decimals;
+        while left >= 2 {
+            let (hi, lo) = pair(frac % 100);
+            put(lo);
+            put(hi);
+            frac /= 100;
+            left -= 2;
         }
-    }
-    if negative {
-        put(b'-', &mut pos);
-    }
-    // Only ASCII digits, '.' and '-' were written.
-    if let Some(Ok(text)) = out.get(pos..).map(std::str::from_utf8) {
-        buf.push_str(text);
+        if left == 1 {
+            put(b'0' + (frac % 10) as u8);
+        }
+        let mut left_of = width;
+        if self.decimals > 0 {
+            left_of = put(b'.');
+        }
+        while int >= 10 {
+            let (hi, lo) = pair(int % 100);
+            put(lo);
+            left_of = put(hi);
+            int /= 100;
+        }
+        // A leading digit is left when the pairs used up an odd count, or when the value is
+        // below 1 (then the one slot left before the sign is the zero of "0.").
+        if int > 0 || left_of > usize::from(self.negative) {
+            put(b'0' + int as u8);
+        }
+        if self.negative {
+            put(b'-');
+        }
     }
 }
 
@@ -232,6 +337,18 @@ mod tests {
         #[test]
         fn agrees_with_std_on_reef_values(v in -1.0e5f64..1.0e5, d in 0usize..8) {
             prop_assert_eq!(f(v, d), std_fixed(v, d));
+        }
+
+        #[test]
+        fn bytes_variant_writes_the_same_bytes(bits in any::<u64>(), v in -1.0e5f64..1.0e5,
+                                               d in 0usize..18) {
+            for x in [f64::from_bits(bits), v] {
+                let mut b = b"x,".to_vec();
+                let ok = push_fixed_bytes(&mut b, x, d);
+                prop_assert_eq!(ok, x.is_finite());
+                let want = if x.is_finite() { format!("x,{}", std_fixed(x, d)) } else { "x,".into() };
+                prop_assert_eq!(String::from_utf8_lossy(&b), want);
+            }
         }
     }
 }

@@ -1,14 +1,16 @@
 //! `calcisite solve`: the carbonate system for every row of a CSV file.
 //!
 //! The file contract (column names, order, the `problem` and `pair_used` columns, exit
-//! status) is fixed in the README's "solve file contract". Rows are read and written in
-//! chunks; each chunk is solved in parallel and written back in input order, so memory stays
-//! constant however long the file is. Each row goes through the one measured-pair solver,
+//! status) is fixed in the README's "solve file contract". Rows go through three
+//! overlapping stages in chunks (read and parse, solve in parallel, write in input order),
+//! so memory stays constant however long the file is. Each row goes through the one measured-pair solver,
 //! [`crate::chem::measured`]; numbers are written by [`crate::numfmt`].
 
 use std::fs::File;
 use std::io::{self, BufReader, Read, Write};
 use std::path::{Path, PathBuf};
+use std::sync::mpsc;
+use std::thread;
 
 use clap::Args;
 use rayon::prelude::*;
@@ -24,8 +26,8 @@ use crate::{fsio, numfmt};
 /// Exit status when every row was solved.
 pub const EXIT_OK: i32 = 0;
 
-/// Rows per parallel chunk: large enough to keep both cores busy, small enough that memory
-/// does not grow with the file.
+/// Rows per chunk handed between the read, solve and write stages: large enough to keep
+/// both cores busy, small enough that memory does not grow with the file.
 const CHUNK_ROWS: usize = 16_384;
 
 /// Output columns appended (or filled in place), in contract order: the species in
@@ -332,88 +334,107 @@ fn solve_row(rec: &csv::StringRecord, layout: &Layout, methods: &MethodSet) -> R
     }
 }
 
-/// Solve one row and put its output fields into `fields`; returns whether it was solved.
+/// Append `field` to a CSV line as the `csv` crate's writer does by default: in double
+/// quotes, with quotes doubled, when it holds a comma, a quote, CR or LF; as is otherwise.
+fn push_field(out: &mut Vec<u8>, field: &[u8]) {
+    if !field
+        .iter()
+        .any(|&b| matches!(b, b',' | b'"' | b'\r' | b'\n'))
+    {
+        out.extend_from_slice(field);
+        return;
+    }
+    out.push(b'"');
+    for part in field.split_inclusive(|&b| b == b'"') {
+        out.extend_from_slice(part);
+        if part.last() == Some(&b'"') {
+            out.push(b'"');
+        }
+    }
+    out.push(b'"');
+}
+
+/// Output column `k` of one row as CSV text (quoted when needed), or false for an unsolved
+/// value (an in-place column then keeps the input's text). `problem` and `pair_used` are
+/// always written.
+fn push_output(out: &mut Vec<u8>, k: usize, row: &RowResult, scratch: &mut String) -> bool {
+    let name = OUTPUT_COLUMNS.get(k).copied().unwrap_or("problem");
+    match (name, &row.solved) {
+        ("problem", _) => {
+            scratch.clear();
+            for (i, n) in row.notes.iter().enumerate() {
+                if i > 0 {
+                    scratch.push_str("; ");
+                }
+                scratch.push_str(n);
+            }
+            push_field(out, scratch.as_bytes());
+            true
+        }
+        ("pair_used", Some((_, pair))) => {
+            use std::fmt::Write as _;
+            scratch.clear();
+            let _ = write!(scratch, "{pair}");
+            push_field(out, scratch.as_bytes());
+            true
+        }
+        ("pair_used", None) => true,
+        // Digits, '.' and '-' only: never quoted.
+        (_, Some((st, _))) => {
+            numfmt::push_fixed_bytes(out, state_value(st, name), decimals_of(name))
+        }
+        (_, None) => false,
+    }
+}
+
+/// Solve one row and append its output line to `out`; returns whether it was solved.
 fn process(
     rec: &csv::StringRecord,
     layout: &Layout,
     methods: &MethodSet,
-    fields: &mut csv::ByteRecord,
+    out: &mut Vec<u8>,
     scratch: &mut String,
 ) -> bool {
-    let RowResult { solved, notes } = solve_row(rec, layout, methods);
-    // The text of output column `k`, or false for an unsolved value (an in-place column then
-    // keeps the input's text). `problem` and `pair_used` are always written.
-    let text = |k: usize, buf: &mut String| -> bool {
-        buf.clear();
-        let name = OUTPUT_COLUMNS.get(k).copied().unwrap_or("problem");
-        match (name, &solved) {
-            ("problem", _) => {
-                for (i, n) in notes.iter().enumerate() {
-                    if i > 0 {
-                        buf.push_str("; ");
-                    }
-                    buf.push_str(n);
-                }
-                true
-            }
-            ("pair_used", Some((_, pair))) => {
-                use std::fmt::Write as _;
-                let _ = write!(buf, "{pair}");
-                true
-            }
-            ("pair_used", None) => true,
-            (_, Some((st, _))) => numfmt::push_fixed(buf, state_value(st, name), decimals_of(name)),
-            (_, None) => false,
-        }
-    };
-    fields.clear();
+    let row = solve_row(rec, layout, methods);
     for i in 0..layout.input_width {
-        let input = rec.get(i).unwrap_or("");
-        match layout.in_place.get(i).copied().flatten() {
-            Some(k) if text(k, scratch) => fields.push_field(scratch.as_bytes()),
-            _ => fields.push_field(input.as_bytes()),
+        if i > 0 {
+            out.push(b',');
+        }
+        let in_place = layout.in_place.get(i).copied().flatten();
+        if !in_place.is_some_and(|k| push_output(out, k, &row, scratch)) {
+            push_field(out, rec.get(i).unwrap_or("").as_bytes());
         }
     }
+    // The output has at least two fields (temp_c and salinity are in the header, `problem`
+    // is appended or in place), so the csv crate's quoting of a lone empty field never arises.
     for (k, slot) in layout.outputs.iter().enumerate() {
         if slot.is_none() {
-            if text(k, scratch) {
-                fields.push_field(scratch.as_bytes());
-            } else {
-                fields.push_field(b"");
-            }
+            out.push(b',');
+            push_output(out, k, &row, scratch);
         }
     }
-    solved.is_some()
+    out.push(b'\n');
+    row.solved.is_some()
 }
 
-/// Rows per output buffer: each worker writes this many rows into its own CSV buffer.
+/// Rows per output buffer: each worker writes this many rows into its own buffer.
 const SUB_ROWS: usize = 1024;
 
-/// A CSV writer configured as every output of `solve` (the same bytes whoever writes).
-fn csv_writer(capacity: usize) -> csv::Writer<Vec<u8>> {
-    csv::WriterBuilder::new()
-        .flexible(true)
-        .from_writer(Vec::with_capacity(capacity))
-}
-
-/// Solve and write `rows` into one buffer; returns the bytes and the count of unsolved rows.
+/// Solve `rows` and append their lines to `out`; returns the count of unsolved rows.
 fn write_rows(
     rows: &[csv::StringRecord],
     layout: &Layout,
     methods: &MethodSet,
-) -> Result<(Vec<u8>, u64), String> {
-    let mut w = csv_writer(rows.len() * 256);
-    let mut fields = csv::ByteRecord::new();
-    let mut scratch = String::with_capacity(32);
+    out: &mut Vec<u8>,
+) -> u64 {
+    let mut scratch = String::with_capacity(64);
     let mut unsolved = 0;
     for rec in rows {
-        if !process(rec, layout, methods, &mut fields, &mut scratch) {
+        if !process(rec, layout, methods, out, &mut scratch) {
             unsolved += 1;
         }
-        w.write_byte_record(&fields).map_err(|e| e.to_string())?;
     }
-    let bytes = w.into_inner().map_err(|e| e.error().to_string())?;
-    Ok((bytes, unsolved))
+    unsolved
 }
 
 /// Counts of a finished run.
@@ -423,8 +444,54 @@ pub struct SolveSummary {
     pub unsolved: u64,
 }
 
+/// The reader's message for a CSV error.
+fn read_error(e: &csv::Error, header: &csv::StringRecord) -> String {
+    let line = e.position().map(|p| p.line()).unwrap_or(0);
+    if let csv::ErrorKind::Utf8 { err, .. } = e.kind() {
+        let name = header.get(err.field()).unwrap_or("?");
+        return format!(
+            "line {line}, column {} (`{name}`): the cell is not valid UTF-8 text; save the file as UTF-8 (nothing was written)",
+            err.field() + 1
+        );
+    }
+    format!("line {line}: {e}")
+}
+
+/// Fill `chunk` with up to `CHUNK_ROWS` records (reusing those it holds); returns how many.
+fn read_chunk<R: Read>(
+    rdr: &mut csv::Reader<R>,
+    chunk: &mut Vec<csv::StringRecord>,
+    header: &csv::StringRecord,
+) -> Result<usize, String> {
+    let mut filled = 0;
+    while filled < CHUNK_ROWS {
+        if filled == chunk.len() {
+            chunk.push(csv::StringRecord::new());
+        }
+        let Some(rec) = chunk.get_mut(filled) else {
+            break;
+        };
+        match rdr.read_record(rec) {
+            Ok(true) => filled += 1,
+            Ok(false) => break,
+            Err(e) => return Err(read_error(&e, header)),
+        }
+    }
+    Ok(filled)
+}
+
+/// A chunk read: its records (the first `.1` of them are rows), or the read error.
+type Chunk = Result<(Vec<csv::StringRecord>, usize), String>;
+/// A chunk solved: one byte buffer per `SUB_ROWS` rows, rows, unsolved rows.
+type Solved = Result<(Vec<Vec<u8>>, u64, u64), String>;
+
 /// Stream `reader` to `writer`: the whole `solve` command without the file handling.
-pub fn solve_stream<R: Read, W: Write>(
+///
+/// Three stages overlap, each handing chunks to the next through a channel that holds one:
+/// a thread reads and parses the next chunk, another solves the current one on all cores,
+/// and the calling thread writes the one before. Records and buffers go back to the stage
+/// that fills them, so memory stays constant however long the file is.
+pub fn solve_stream<R: Read + Send, W: Write>(
     reader: R,
     writer: W,
     methods: &MethodSet,
@@ -451,56 +518,75 @@ pub fn solve_stream<R: Read, W: Write>(
         ));
     }
     let mut out = writer;
-    let mut head = csv_writer(256);
-    head.write_record(layout.output_header(&header))
-        .map_err(|e| e.to_string())?;
-    let head = head.into_inner().map_err(|e| e.error().to_string())?;
+    let mut head = Vec::with_capacity(256);
+    for (i, name) in layout.output_header(&header).iter().enumerate() {
+        if i > 0 {
+            head.push(b',');
+        }
+        push_field(&mut head, name.as_bytes());
+    }
+    head.push(b'\n');
     out.write_all(&head).map_err(|e| e.to_string())?;
-    let mut summary = SolveSummary::default();
-    // Records are reused from chunk to chunk (no allocation per row once warm).
-    let mut chunk: Vec<csv::StringRecord> = Vec::new();
-    loop {
-        let mut filled = 0;
-        while filled < CHUNK_ROWS {
-            if filled == chunk.len() {
-                chunk.push(csv::StringRecord::new());
-            }
-            let Some(rec) = chunk.get_mut(filled) else {
-                break;
-            };
-            match rdr.read_record(rec) {
-                Ok(true) => filled += 1,
-                Ok(false) => break,
-                Err(e) => {
-                    let line = e.position().map(|p| p.line()).unwrap_or(0);
-                    if let csv::ErrorKind::Utf8 { err, .. } = e.kind() {
-                        let name = header.get(err.field()).unwrap_or("?");
-                        return Err(format!(
-                            "line {line}, column {} (`{name}`): the cell is not valid UTF-8 text; save the file as UTF-8 (nothing was written)",
-                            err.field() + 1
-                        ));
-                    }
-                    return Err(format!("line {line}: {e}"));
+
+    let (chunk_tx, chunk_rx) = mpsc::sync_channel::<Chunk>(1);
+    let (solved_tx, solved_rx) = mpsc::sync_channel::<Solved>(1);
+    let (records_back, records_free) = mpsc::channel::<Vec<csv::StringRecord>>();
+    let (bufs_back, bufs_free) = mpsc::channel::<Vec<Vec<u8>>>();
+    let layout = &layout;
+    let header = &header;
+    thread::scope(|s| {
+        // Stage 1: read and parse. Stops at the end, at an error, or when no one listens.
+        s.spawn(move || {
+            loop {
+                let mut chunk = records_free.try_recv().unwrap_or_default();
+                let msg = read_chunk(&mut rdr, &mut chunk, header).map(|n| (chunk, n));
+                let last = !matches!(msg, Ok((_, n)) if n > 0);
+                if chunk_tx.send(msg).is_err() || last {
+                    return;
                 }
             }
-        }
-        let rows = chunk.get(..filled).unwrap_or_default();
-        if rows.is_empty() {
-            break;
-        }
-        let parts: Vec<Result<(Vec<u8>, u64), String>> = rows
-            .par_chunks(SUB_ROWS)
-            .map(|part| write_rows(part, &layout, methods))
-            .collect();
-        for part in parts {
-            let (bytes, unsolved) = part?;
-            out.write_all(&bytes).map_err(|e| e.to_string())?;
+        });
+        // Stage 2: solve each chunk in parallel, in `SUB_ROWS` parts written in input order.
+        s.spawn(move || {
+            for msg in chunk_rx {
+                let solved = msg.map(|(chunk, n)| {
+                    let rows = chunk.get(..n).unwrap_or_default();
+                    let mut bufs = bufs_free.try_recv().unwrap_or_default();
+                    bufs.resize_with(n.div_ceil(SUB_ROWS), || Vec::with_capacity(SUB_ROWS * 256));
+                    let unsolved = rows
+                        .par_chunks(SUB_ROWS)
+                        .zip(bufs.par_iter_mut())
+                        .map(|(part, buf)| {
+                            buf.clear();
+                            write_rows(part, layout, methods, buf)
+                        })
+                        .sum::<u64>();
+                    let _ = records_back.send(chunk);
+                    (bufs, n as u64, unsolved)
+                });
+                if solved_tx.send(solved).is_err() {
+                    return;
+                }
+            }
+        });
+        // Stage 3 (this thread): write in order. Returning early drops the receiver, which
+        // stops the other stages.
+        let mut summary = SolveSummary::default();
+        for msg in solved_rx {
+            let (bufs, rows, unsolved) = msg?;
+            if rows == 0 {
+                break;
+            }
+            for buf in &bufs {
+                out.write_all(buf).map_err(|e| e.to_string())?;
+            }
+            let _ = bufs_back.send(bufs);
+            summary.rows += rows;
             summary.unsolved += unsolved;
         }
-        summary.rows += rows.len() as u64;
-    }
-    out.flush().map_err(|e| e.to_string())?;
-    Ok(summary)
+        out.flush().map_err(|e| e.to_string())?;
+        Ok(summary)
+    })
 }
 
 /// Run the command; returns the process exit status.
@@ -527,8 +613,8 @@ pub fn run(args: &SolveArgs) -> Result<SolveSummary, String> {
             args.input.display()
         ));
     }
-    let reader: Box<dyn Read> = if from_stdin {
-        Box::new(io::stdin().lock())
+    let reader: Box<dyn Read + Send> = if from_stdin {
+        Box::new(BufReader::with_capacity(1 << 20, io::stdin()))
     } else {
         let f = File::open(&args.input)
             .map_err(|e| format!("cannot open the input {}: {e}", args.input.display()))?;
@@ -568,186 +654,4 @@ pub fn run(args: &SolveArgs) -> Result<SolveSummary, String> {
 }
 
 #[cfg(test)]
-mod tests {
-    use super::*;
-
-    fn run_with(input: &str, m: &MethodSet) -> Result<(String, SolveSummary), String> {
-        let mut out = Vec::new();
-        let s = solve_stream(input.as_bytes(), &mut out, m)?;
-        Ok((String::from_utf8(out).map_err(|e| e.to_string())?, s))
-    }
-
-    fn run_str(input: &str) -> (String, SolveSummary) {
-        run_with(input, &MethodSet::default()).unwrap()
-    }
-
-    /// Field `name` of data line `row` (1-based) of a solve output.
-    fn field(out: &str, row: usize, name: &str) -> String {
-        let mut rdr = csv::ReaderBuilder::new()
-            .flexible(true)
-            .from_reader(out.as_bytes());
-        let header = rdr.headers().unwrap().clone();
-        let i = header.iter().position(|h| h == name).unwrap();
-        let rec = rdr.records().nth(row - 1).unwrap().unwrap();
-        rec.get(i).unwrap().to_string()
-    }
-
-    #[test]
-    fn contract_columns_and_order() {
-        let (out, s) = run_str("station,temp_c,salinity,ta,dic,note\nA,25,35,2300,2000,x\n");
-        let mut lines = out.lines();
-        assert_eq!(
-            lines.next().unwrap(),
-            "station,temp_c,salinity,ta,dic,note,ph_t,pco2,fco2,co2aq,hco3,co3,omega_ar,omega_ca,revelle,problem,pair_used"
-        );
-        let row = lines.next().unwrap();
-        // PyCO2SYS 1.8.3.4, default set (fact sheet §7g): pH_T 8.040225, pCO2 402.693,
-        // CO2* 11.3967, HCO3 1777.679, CO3 210.925, Omega_ar 3.346727.
-        assert!(
-            row.starts_with("A,25,35,2300.0000,2000.0000,x,8.040225,402.69"),
-            "{row}"
-        );
-        assert!(row.contains(",11.39"), "{row}");
-        assert!(row.contains(",1777.6"), "{row}");
-        assert!(row.contains(",210.9"), "{row}");
-        assert!(row.contains(",3.34673,"), "{row}");
-        assert!(
-            row.ends_with(",,ta+dic"),
-            "problem empty, pair named: {row}"
-        );
-        assert_eq!(
-            s,
-            SolveSummary {
-                rows: 1,
-                unsolved: 0
-            }
-        );
-    }
-
-    #[test]
-    fn bad_rows_are_written_with_a_problem_and_counted() {
-        let input = "temp_c,salinity,ta,dic,pco2,fco2\n\
-                     25,35,abc,2000,,\n\
-                     25,35,,,400,400\n\
-                     25,35,2300,,,\n\
-                     25,35,-5,2000,,\n\
-                     25,60,2300,2000,,\n\
-                     25,35,2300,2000,,\n";
-        let (out, s) = run_str(input);
-        assert_eq!(out.lines().count(), 7, "every row is written");
-        let problem = |row| field(&out, row, "problem");
-        assert_eq!(problem(1), "error: ta: 'abc' is not a number");
-        assert!(
-            problem(2).starts_with("error: pco2 with fco2 is not a valid pair"),
-            "{}",
-            problem(2)
-        );
-        assert_eq!(
-            problem(3),
-            "error: two of ta, dic, ph_t, pco2/fco2, co3 are needed, this row gives ta only"
-        );
-        assert_eq!(
-            problem(4),
-            "error: ta = -5 µmol/kg is outside the physical limit (above 0 to 5000 µmol/kg)"
-        );
-        assert_eq!(
-            problem(5),
-            "error: salinity = 60 is outside the physical limit (from 0 to 50)"
-        );
-        assert_eq!(problem(6), "");
-        for row in 1..=5 {
-            assert_eq!(field(&out, row, "pair_used"), "", "row {row}");
-        }
-        assert_eq!(field(&out, 6, "pair_used"), "ta+dic");
-        assert_eq!(
-            s,
-            SolveSummary {
-                rows: 6,
-                unsolved: 5
-            }
-        );
-    }
-
-    #[test]
-    fn over_determined_rows_are_checked() {
-        // pCO2 402.69 is what TA 2300 / DIC 2000 give (PyCO2SYS, fact sheet §7g); 500 is
-        // 24 % above it, beyond the 5 % tolerance.
-        let (out, _) =
-            run_str("temp_c,salinity,ta,dic,pco2\n25,35,2300,2000,402.7\n25,35,2300,2000,500\n");
-        assert_eq!(field(&out, 1, "problem"), "");
-        assert_eq!(field(&out, 1, "pair_used"), "ta+dic");
-        assert_eq!(
-            field(&out, 2, "problem"),
-            "warning: measured pco2 500 differs from the value calculated from ta + dic \
-             (402.6930) by 24.2 % (tolerance 5 %)"
-        );
-        assert_eq!(field(&out, 2, "pair_used"), "ta+dic");
-    }
-
-    /// The pH column's name gives its scale. PyCO2SYS 1.8.3.4 (fact sheet §7g, and the
-    /// scale cross-check in `chem::scales`): pH_T 8.040225 is pH_NBS 8.176768 at S 35,
-    /// 25 °C, with TA 2300 µmol/kg.
-    #[test]
-    fn ph_scale_comes_from_the_column_name() {
-        let (out, _) = run_str("temp_c,salinity,ta,ph_nbs\n25,35,2300,8.176768\n");
-        assert!(
-            out.starts_with("temp_c,salinity,ta,ph_nbs,dic,ph_t,"),
-            "{out}"
-        );
-        assert_eq!(field(&out, 1, "ph_nbs"), "8.176768", "input kept");
-        let ph_t: f64 = field(&out, 1, "ph_t").parse().unwrap();
-        assert!((ph_t - 8.040225).abs() < 3e-6, "{ph_t}");
-        assert_eq!(field(&out, 1, "pair_used"), "ta+ph_t");
-    }
-
-    #[test]
-    fn two_ph_columns_are_refused_naming_both() {
-        let e = run_with(
-            "temp_c,salinity,ta,ph_t,ph_free\n25,35,2300,8.0,8.1\n",
-            &MethodSet::default(),
-        )
-        .unwrap_err();
-        assert_eq!(
-            e,
-            "the header has 2 pH columns (ph_t, ph_free); keep exactly one, named for its \
-             scale: ph_t (total), ph_sws (seawater), ph_free or ph_nbs"
-        );
-    }
-
-    #[test]
-    fn out_of_fitted_range_is_solved_and_flagged() {
-        let (out, s) = run_str("temp_c,salinity,ta,dic\n0.5,35,2300,2100\n");
-        assert_eq!(
-            field(&out, 1, "problem"),
-            "warning: temp_c 0.50 °C is outside the K1/K2 fitted range 2–35 °C \
-             (Lueker, Dickson & Keeling (2000), Mar. Chem. 70:105); \
-             warning: temp_c 0.50 °C is outside the KF fitted range 9–33 °C \
-             (Perez & Fraga (1987), Mar. Chem. 21:161); \
-             warning: temp_c 0.50 °C is outside the Ksp fitted range 5–40 °C (Mucci 1983)"
-        );
-        assert_eq!(s.unsolved, 0);
-    }
-
-    #[test]
-    fn method_flags_use_catalogue_ids_and_messages() {
-        let e = "lueker".parse::<K1K2>().unwrap_err();
-        assert_eq!(e.suggestion, Some("lueker2000"));
-        assert!(
-            e.to_string()
-                .starts_with("unknown carbonic-acid constant set 'lueker'"),
-            "{e}"
-        );
-        // Uppström boron is 4 % below Lee et al.: less borate alkalinity at the same TA
-        // leaves more carbonate alkalinity, so pH is higher at the same DIC. The flag
-        // reaches the solver.
-        let m = MethodSet {
-            boron: "uppstrom1974".parse().unwrap(),
-            ..MethodSet::default()
-        };
-        let input = "temp_c,salinity,ta,dic\n25,35,2300,2000\n";
-        let (a, _) = run_str(input);
-        let (b, _) = run_with(input, &m).unwrap();
-        let ph = |o: &str| field(o, 1, "ph_t").parse::<f64>().unwrap();
-        assert!(ph(&b) > ph(&a), "{a}\n{b}");
-    }
-}
+mod tests;
