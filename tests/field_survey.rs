@@ -175,7 +175,10 @@ fn field_like_lagoon_survey_checks_and_projects_with_few_right_findings() {
     let text = pdf_extract::extract_text_from_mem(&pdf).unwrap_or_default();
     let flat: String = text.split_whitespace().collect::<Vec<_>>().join(" ");
     assert!(flat.contains("below the site's floor of 5"), "{flat}");
-    assert!(flat.contains("left out of the baseline and the outlook"), "{flat}");
+    assert!(
+        flat.contains("left out of the baseline and the outlook"),
+        "{flat}"
+    );
     assert!(flat.contains("brackish"), "{flat}");
 
     // --verbose lists every row finding.

@@ -54,8 +54,12 @@ pub fn run_check(args: &CheckArgs) -> i32 {
     let verbose = crate::diag::verbose();
     // The same checks `project` and `report` run (pipeline::load_checked), so that `check`
     // passing means they accept the site file.
+    let mut thermal_line = String::new();
     let loaded = match crate::pipeline::load_checked(&args.site, Default::default()) {
-        Ok(checked) => Ok(checked.loaded),
+        Ok(checked) => {
+            thermal_line = thermal_text(checked.thermal.as_ref());
+            Ok(checked.loaded)
+        }
         Err(crate::pipeline::Failure::Load(fail)) => Err(fail),
         Err(crate::pipeline::Failure::Outlook(e)) => {
             eprintln!("error: {}: {e}", args.site.display());
@@ -68,7 +72,9 @@ pub fn run_check(args: &CheckArgs) -> i32 {
             // Rows the outlook will leave out, by the outlook's own test.
             shown.extend(crate::outlook::from_site::rows_left_out(&site));
             let printed = match args.format {
-                CheckFormat::Text => super::print_out(&summary_text(&site)),
+                CheckFormat::Text => {
+                    super::print_out(&format!("{}{thermal_line}", summary_text(&site)))
+                }
                 CheckFormat::Json => print_json(&JsonOut {
                     status: "ok",
                     site: Some(&site),
@@ -99,6 +105,31 @@ pub fn run_check(args: &CheckArgs) -> i32 {
             EXIT_INPUT
         }
     }
+}
+
+/// One paragraph on the temperature record the thermal outlook will use.
+fn thermal_text(record: Option<&crate::site::temperature::ThermalRecord>) -> String {
+    let Some(r) = record else {
+        return "\nThermal stress: no temperature record ([thermal] logger file or sensor records); \
+                the heat-stress outlook is not computed\n"
+            .to_string();
+    };
+    let source = crate::outlook::thermal::output::source_text(&r.source);
+    let span = match (r.readings.first(), r.readings.last()) {
+        (Some(a), Some(b)) => format!("{} to {}", a.local.date(), b.local.date()),
+        _ => String::new(),
+    };
+    let mmm = match &r.stated_mmm {
+        Some(m) => format!(
+            "MMM {} °C stated ({}, {}–{})",
+            m.value_c, m.source, m.base_period.0, m.base_period.1
+        ),
+        None => "MMM estimated from this record".to_string(),
+    };
+    format!(
+        "\nThermal stress: {source}, {} readings, {span}; {mmm}\n",
+        r.readings.len()
+    )
 }
 
 /// Row errors of one kind in one file shown in full before the rest are summarised (all of

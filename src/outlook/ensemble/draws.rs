@@ -73,6 +73,26 @@ pub(super) fn draw(e: &EnsembleSettings, records: &[usize], key: u64, m: usize) 
 /// The member's TA and seawater pCO2 at sampling: the record's measured pair with the
 /// member's measurement errors, re-solved with the member's constants at the sampling
 /// conditions (`k_sample`: central constants there, computed when `None`).
+/// The constants of one member at a record's sampling conditions: `k_sample` (the central
+/// constants there) or, when `None`, computed afresh; shifted by the member's draw of the
+/// constants' uncertainties when it has one.
+pub(super) fn member_constants<'a>(
+    k_sample: Option<&'a Constants>,
+    rec: &ProjectionRecord,
+    methods: &MethodSet,
+    perturbation: Option<&Perturbation>,
+) -> std::borrow::Cow<'a, Constants> {
+    use std::borrow::Cow;
+    let k0 = match k_sample {
+        Some(k) => Cow::Borrowed(k),
+        None => Cow::Owned(Constants::new(&rec.conditions_at(rec.temp_c), methods)),
+    };
+    match perturbation {
+        Some(pt) => Cow::Owned(k0.perturbed(pt)),
+        None => k0,
+    }
+}
+
 pub(super) fn member_start(
     e: &EnsembleSettings,
     methods: &MethodSet,
@@ -97,23 +117,8 @@ pub(super) fn member_start(
     match (a, b) {
         (Input::Ta(ta), Input::Pco2(p)) | (Input::Pco2(p), Input::Ta(ta)) => Ok((ta, p)),
         _ => {
-            let fresh;
-            let k0 = match k_sample {
-                Some(k) => k,
-                None => {
-                    fresh = Constants::new(&rec.conditions_at(rec.temp_c), methods);
-                    &fresh
-                }
-            };
-            let perturbed;
-            let k = match &draw.perturbation {
-                Some(pt) => {
-                    perturbed = k0.perturbed(pt);
-                    &perturbed
-                }
-                None => k0,
-            };
-            chem::solve_pair(a, b, k)
+            let k = member_constants(k_sample, rec, methods, draw.perturbation.as_ref());
+            chem::solve_pair(a, b, &k)
                 .map(|st| (st.ta, st.pco2))
                 .map_err(|e| format!("re-solving the record with this member's draws: {e}"))
         }

@@ -188,24 +188,14 @@ impl Prepared<'_> {
         pco2_rec: f64,
         k_sample: Option<&Constants>,
     ) -> Option<Present> {
-        let fresh;
-        let k0 = match k_sample {
-            Some(k) => k,
-            None => {
-                fresh = Constants::new(&rec.conditions_at(rec.temp_c), &self.site.methods);
-                &fresh
-            }
-        };
-        let perturbed;
-        let k = match &draw.perturbation {
-            Some(pt) => {
-                perturbed = k0.perturbed(pt);
-                &perturbed
-            }
-            None => k0,
-        };
+        let k = super::draws::member_constants(
+            k_sample,
+            rec,
+            &self.site.methods,
+            draw.perturbation.as_ref(),
+        );
         let pco2_sea = anchor.project_pco2(pco2_rec, anchor.pco2_air_sample, self.s.mode);
-        let st = solve_projected(ta, pco2_sea, None, k).ok()?;
+        let st = solve_projected(ta, pco2_sea, None, &k).ok()?;
         Some(Present {
             omega_ar: st.omega_ar,
             ph_t: st.ph_t,
