@@ -1,4 +1,5 @@
-//! Unit tests of `solve` (kept apart so the command's file stays small).
+//! Unit tests of `solve`, kept apart so the command's file stays small (a `#[cfg(test)]`
+//! module: its `unwrap`s never meet user data).
 use super::*;
 
 fn run_with(input: &str, m: &MethodSet) -> Result<(String, SolveSummary), String> {

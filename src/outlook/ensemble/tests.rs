@@ -1,4 +1,5 @@
-//! Tests of the whole ensemble run on a small invented site.
+//! Tests of the whole ensemble run on a small invented site (a `#[cfg(test)]` module: its
+//! `unwrap`s never meet user data).
 
 use super::*;
 use crate::chem::{self, Constants, Input, MethodSet};
