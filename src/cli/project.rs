@@ -96,8 +96,10 @@ pub fn load_and_project(
             let shown = super::check::site_diagnostics(loaded, crate::diag::verbose());
             eprint!("{}", shown.render(colour));
         } else {
-            let w = loaded.count(crate::diag::Severity::Warning);
-            let n = loaded.count(crate::diag::Severity::Note);
+            // Counted as `check` shows them: row findings of one kind grouped.
+            let shown = super::check::site_diagnostics(loaded, false);
+            let w = shown.count(crate::diag::Severity::Warning);
+            let n = shown.count(crate::diag::Severity::Note);
             eprintln!(
                 "{}: {w} warning(s), {n} note(s); `calcisite check {}` lists them",
                 path.display(),

@@ -69,8 +69,18 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
     let mut inputs = Vec::new();
     for run in runs {
         sites.push(site_report(run, &horizons, opts.appendix)?);
+        let logger = run.outlook.heat.as_ref().and_then(|h| match &h.source {
+            crate::site::temperature::ThermalSource::Logger { path, .. } => Some(path),
+            crate::site::temperature::ThermalSource::SensorRecords { .. } => None,
+        });
         for (i, path) in run.loaded.input_files.iter().enumerate() {
-            let role = if i == 0 { "site file" } else { "records" };
+            let role = if i == 0 {
+                "site file"
+            } else if Some(path) == logger {
+                "temperature logger"
+            } else {
+                "records"
+            };
             let f = InputFile::hash(role, path)
                 .map_err(|e| format!("{}: cannot read for its checksum: {e}", path.display()))?;
             inputs.push(f);
