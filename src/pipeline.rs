@@ -14,7 +14,7 @@ use std::path::Path;
 
 use crate::diag::{Diagnostic, Diagnostics};
 use crate::outlook::{self, Outlook, Progress, ProjectionSettings, SiteInput, thermal};
-use crate::site::temperature::{ThermalRecord, ThermalSource, load_thermal};
+use crate::site::temperature::{ThermalSource, load_thermal};
 use crate::site::{LoadFailure, LoadedSite, load_site};
 
 /// Command-line overrides of the site file's ensemble settings.
@@ -31,8 +31,8 @@ pub struct Checked {
     pub loaded: LoadedSite,
     /// The validated projection settings (overrides applied).
     pub settings: ProjectionSettings,
-    /// The temperature record for the thermal outlook, when the site has one.
-    pub thermal: Option<ThermalRecord>,
+    /// The temperature record, prepared for the thermal outlook, when the site has one.
+    pub thermal: Option<thermal::site::PreparedHeat>,
 }
 
 /// A projected site.
@@ -87,7 +87,9 @@ pub fn load_checked(path: &Path, overrides: Overrides) -> Result<Checked, Failur
 
 /// The site's temperature record, read and checked so that the thermal outlook will run:
 /// problems name the logger file's line or the site file's `thermal.*` field.
-fn load_thermal_checked(loaded: &LoadedSite) -> Result<Option<ThermalRecord>, Diagnostics> {
+fn load_thermal_checked(
+    loaded: &LoadedSite,
+) -> Result<Option<thermal::site::PreparedHeat>, Diagnostics> {
     let record = load_thermal(
         &loaded.path,
         loaded.site.thermal.as_ref(),
@@ -97,29 +99,30 @@ fn load_thermal_checked(loaded: &LoadedSite) -> Result<Option<ThermalRecord>, Di
     let Some(record) = record else {
         return Ok(None);
     };
-    if let Err(e) = thermal::site::check_record(&record) {
-        let file = match &record.source {
-            ThermalSource::Logger { path, .. } => path.clone(),
-            ThermalSource::SensorRecords { .. } => loaded.path.clone(),
-        };
-        let line = match e {
-            thermal::HeatError::NotIncreasing { index }
-            | thermal::HeatError::OutOfRange { index, .. } => {
-                record.readings.get(index).map(|r| r.line)
-            }
-            _ => None,
-        };
-        let mut d = Diagnostic::error(format!("thermal-stress record: {e}")).with_file(file);
-        if let Some(line) = line {
-            d = d.with_line(line);
-        } else if record.stated_mmm.is_none() {
-            d = d.with_help(
-                "a year or more of daily or sub-daily temperatures, or [thermal] mmm_c with mmm_source and mmm_base_period",
-            );
+    let e = match thermal::site::prepare(&record) {
+        Ok(prepared) => return Ok(Some(prepared)),
+        Err(e) => e,
+    };
+    let file = match &record.source {
+        ThermalSource::Logger { path, .. } => path.clone(),
+        ThermalSource::SensorRecords { .. } => loaded.path.clone(),
+    };
+    let line = match e {
+        thermal::HeatError::NotIncreasing { index }
+        | thermal::HeatError::OutOfRange { index, .. } => {
+            record.readings.get(index).map(|r| r.line)
         }
-        return Err(Diagnostics::from(d));
+        _ => None,
+    };
+    let mut d = Diagnostic::error(format!("thermal-stress record: {e}")).with_file(file);
+    if let Some(line) = line {
+        d = d.with_line(line);
+    } else if record.stated_mmm.is_none() {
+        d = d.with_help(
+            "a year or more of daily or sub-daily temperatures, or [thermal] mmm_c with mmm_source and mmm_base_period",
+        );
     }
-    Ok(Some(record))
+    Err(Diagnostics::from(d))
 }
 
 /// The settings' diagnostics located in the site file, followed by the site's own findings.
@@ -139,12 +142,8 @@ pub fn project(checked: Checked, progress: &dyn Progress) -> Result<SiteRun, Fai
     let input: SiteInput = outlook::from_site::site_input(&checked.loaded);
     let mut outlook =
         outlook::run(&input, &checked.settings, progress).map_err(Failure::Outlook)?;
-    if let Some(record) = &checked.thermal {
-        // Checked in `load_checked`; a failure here is an input the check let through.
-        outlook.heat = Some(
-            thermal::site::site_heat(record, &checked.settings)
-                .map_err(|e| Failure::Outlook(outlook::OutlookError::Input(e.to_string())))?,
-        );
+    if let Some(prepared) = &checked.thermal {
+        outlook.heat = Some(thermal::site::site_heat(prepared, &checked.settings));
     }
     Ok(SiteRun {
         loaded: checked.loaded,

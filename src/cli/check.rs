@@ -108,27 +108,31 @@ pub fn run_check(args: &CheckArgs) -> i32 {
 }
 
 /// One paragraph on the temperature record the thermal outlook will use.
-fn thermal_text(record: Option<&crate::site::temperature::ThermalRecord>) -> String {
-    let Some(r) = record else {
+fn thermal_text(prepared: Option<&crate::outlook::thermal::site::PreparedHeat>) -> String {
+    use crate::outlook::thermal::site::MmmOrigin;
+    let Some(p) = prepared else {
         return "\nThermal stress: no temperature record ([thermal] logger file or sensor records); \
                 the heat-stress outlook is not computed\n"
             .to_string();
     };
-    let source = crate::outlook::thermal::output::source_text(&r.source);
-    let span = match (r.readings.first(), r.readings.last()) {
-        (Some(a), Some(b)) => format!("{} to {}", a.local.date(), b.local.date()),
-        _ => String::new(),
-    };
-    let mmm = match &r.stated_mmm {
-        Some(m) => format!(
-            "MMM {} °C stated ({}, {}–{})",
-            m.value_c, m.source, m.base_period.0, m.base_period.1
+    let source = crate::outlook::thermal::output::source_text(&p.source);
+    let last = p.daily.date(p.daily.temp_c.len().saturating_sub(1));
+    let mmm = match &p.mmm_origin {
+        MmmOrigin::Stated {
+            source,
+            base_period,
+        } => format!(
+            "MMM {} °C stated ({source}, {}–{})",
+            p.mmm_c, base_period.0, base_period.1
         ),
-        None => "MMM estimated from this record".to_string(),
+        MmmOrigin::Record { .. } => format!(
+            "MMM {} °C estimated from this record",
+            crate::numfmt::fixed(p.mmm_c, 2).unwrap_or_default()
+        ),
     };
     format!(
-        "\nThermal stress: {source}, {} readings, {span}; {mmm}\n",
-        r.readings.len()
+        "\nThermal stress: {source}, {} readings, {} to {last}; {mmm}\n",
+        p.readings, p.daily.first
     )
 }
 

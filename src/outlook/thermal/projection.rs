@@ -11,7 +11,7 @@ use std::collections::HashMap;
 
 use super::daily::DailySeries;
 use super::dhw::{annual_maxima, dhw_series};
-use super::{DHW_SEVERE, DHW_SIGNIFICANT};
+use super::{DHW_SEVERE, DHW_SIGNIFICANT, HeatFinding};
 use crate::outlook::quantile_sorted;
 
 /// The observed temperatures as the projection uses them.
@@ -65,6 +65,8 @@ pub struct HeatPathway {
 pub struct HeatOutlook {
     /// Observed annual maximum DHW per year of record (unshifted).
     pub observed: Vec<(i32, f64)>,
+    /// Years of record without enough DHW coverage for a maximum (left out of `observed`).
+    pub years_left_out: Vec<HeatFinding>,
     pub pathways: Vec<HeatPathway>,
 }
 
@@ -102,10 +104,11 @@ pub fn project_heat(
     settings: &HeatSettings,
     warming: &dyn Fn(usize, i32, usize) -> f64,
 ) -> HeatOutlook {
+    let mut years_left_out = Vec::new();
     let observed = annual_maxima(
         input.daily,
         &dhw_series(input.daily, input.mmm_c, 0.0),
-        None,
+        Some(&mut years_left_out),
     );
     let patterns: Vec<i32> = observed.iter().map(|(y, _)| *y).collect();
     let mut cache = Cache {
@@ -162,7 +165,11 @@ pub fn project_heat(
             onset_q,
         });
     }
-    HeatOutlook { observed, pathways }
+    HeatOutlook {
+        observed,
+        years_left_out,
+        pathways,
+    }
 }
 
 fn summarise(year: i32, mut all: Vec<f64>) -> HeatYear {

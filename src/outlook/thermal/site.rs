@@ -5,7 +5,7 @@
 use chrono::{Datelike, NaiveDate};
 use serde::Serialize;
 
-use super::daily::{TimedTemp, daily_means};
+use super::daily::{DailySeries, TimedTemp, daily_means};
 use super::dhw::{Climatology, climatology};
 use super::projection::{HeatInput, HeatOutlook, HeatSettings, project_heat};
 use super::{HeatError, HeatFinding};
@@ -115,19 +115,28 @@ pub fn standard_normal_quantile(p: f64) -> f64 {
     }
 }
 
-/// Checks that a record can give a thermal outlook (daily means, and an MMM stated or from a
-/// record covering every month) without projecting it; `check` runs this.
-pub fn check_record(record: &ThermalRecord) -> Result<(), HeatError> {
-    let readings = timed(record);
-    let (daily, _) = daily_means(&readings)?;
-    if record.stated_mmm.is_none() {
-        climatology(&daily)?;
-    }
-    Ok(())
+/// A temperature record made ready for the thermal outlook: daily means, findings and the
+/// MMM (stated, or from the record's own climatology). Making it is the check `check` runs;
+/// projecting it needs nothing more from the record.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PreparedHeat {
+    pub source: ThermalSource,
+    /// Readings in the record.
+    pub readings: usize,
+    pub daily: DailySeries,
+    pub findings: Vec<HeatFinding>,
+    pub mmm_c: f64,
+    pub mmm_origin: MmmOrigin,
+    /// The record's own climatology, when it covers every month.
+    pub climatology: Option<Climatology>,
+    pub allowance_c_per_decade: f64,
 }
 
-fn timed(record: &ThermalRecord) -> Vec<TimedTemp> {
-    record
+/// Daily means and the MMM of a record: an error when the record cannot give a thermal
+/// outlook (readings out of order or range, or no stated MMM and a record that does not cover
+/// every month).
+pub fn prepare(record: &ThermalRecord) -> Result<PreparedHeat, HeatError> {
+    let readings: Vec<TimedTemp> = record
         .readings
         .iter()
         .map(|r| TimedTemp {
@@ -135,18 +144,9 @@ fn timed(record: &ThermalRecord) -> Vec<TimedTemp> {
             has_time: r.has_time,
             temp_c: r.temp_c,
         })
-        .collect()
-}
-
-/// The thermal outlook of a site under the outlook's pathways and horizon years.
-pub fn site_heat(
-    record: &ThermalRecord,
-    settings: &ProjectionSettings,
-) -> Result<SiteHeat, HeatError> {
-    let readings = timed(record);
+        .collect();
     let (daily, mut findings) = daily_means(&readings)?;
-    let clim = climatology(&daily);
-    let (mmm_c, mmm_origin, climatology) = match (&record.stated_mmm, clim) {
+    let (mmm_c, mmm_origin, climatology) = match (&record.stated_mmm, climatology(&daily)) {
         (Some(s), c) => (
             s.value_c,
             MmmOrigin::Stated {
@@ -162,12 +162,27 @@ pub fn site_heat(
         }
         (None, Err(e)) => return Err(e),
     };
+    Ok(PreparedHeat {
+        source: record.source.clone(),
+        readings: readings.len(),
+        daily,
+        findings,
+        mmm_c,
+        mmm_origin,
+        climatology,
+        allowance_c_per_decade: record.allowance_c_per_decade,
+    })
+}
+
+/// The thermal outlook of a prepared record under the outlook's pathways and horizon years.
+pub fn site_heat(prep: &PreparedHeat, settings: &ProjectionSettings) -> SiteHeat {
+    let daily = &prep.daily;
     let last_day = daily.date(daily.temp_c.len().saturating_sub(1));
     let last_year = last_day.year();
     let input = HeatInput {
-        daily: &daily,
-        mmm_c,
-        allowance_c_per_decade: record.allowance_c_per_decade,
+        daily,
+        mmm_c: prep.mmm_c,
+        allowance_c_per_decade: prep.allowance_c_per_decade,
         allowance_from_year: last_year,
     };
     let end = settings
@@ -196,23 +211,19 @@ pub fn site_heat(
         central * factors.get(m).copied().unwrap_or(1.0)
     };
     let outlook = project_heat(&input, &heat_settings, &warming);
-    // Years left out of the observed maxima are findings too.
-    super::dhw::annual_maxima(
-        &daily,
-        &super::dhw::dhw_series(&daily, mmm_c, 0.0),
-        Some(&mut findings),
-    );
-    Ok(SiteHeat {
-        source: record.source.clone(),
+    let mut findings = prep.findings.clone();
+    findings.extend(outlook.years_left_out.iter().cloned());
+    SiteHeat {
+        source: prep.source.clone(),
         first_day: daily.first,
         last_day,
-        mmm_c,
-        mmm_origin,
-        climatology,
-        allowance_c_per_decade: record.allowance_c_per_decade,
+        mmm_c: prep.mmm_c,
+        mmm_origin: prep.mmm_origin.clone(),
+        climatology: prep.climatology.clone(),
+        allowance_c_per_decade: prep.allowance_c_per_decade,
         findings,
         outlook,
-    })
+    }
 }
 
 #[cfg(test)]
