@@ -34,6 +34,7 @@ fn invented_site() -> SiteInput {
                 ta: 2290.0 + 5.0 * jf,
                 pco2: 415.0 + 15.0 * phase.cos() + 3.0 * jf,
                 measured: None,
+                unit: None,
             });
         }
     }

@@ -72,6 +72,7 @@ fn ensemble_off_projection_reproduces_pyco2sys_table() {
             ta,
             pco2,
             measured: None,
+            unit: None,
         }
     };
     let obs = Observed::noaa();

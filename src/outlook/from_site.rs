@@ -2,21 +2,22 @@
 //!
 //! * Every sample with a solved carbonate state becomes a [`ProjectionRecord`] (TA and pCO2
 //!   of the solved state, its measured pair for the ensemble's measurement draws; a TA
-//!   estimated from salinity carries the TA–salinity fit's residual as its uncertainty).
+//!   estimated from salinity carries the TA–salinity fit's prediction standard error at
+//!   the row's salinity as its uncertainty), with its station-day as sampling unit.
 //! * `[projection]`, `[calcification]`, `[uncertainty]`, `[thresholds]`, `[[scenario]]` and
 //!   `[baseline]` become [`ProjectionSettings`].
 //!
 //! Problems are reported as diagnostics naming the site file and the field.
 
-use chrono::Datelike;
+use chrono::{Datelike, Timelike};
 
 use crate::chem::Input;
 use crate::diag::{Diagnostic, Diagnostics};
-use crate::site::{LoadedSite, Pair, Sample, schema};
+use crate::site::{LoadedSite, Pair, Sample, TaSalinityFit, schema};
 
 use super::ensemble::{EnsembleSettings, MeasurementUncertainty};
 use super::pathways::Observed;
-use super::projection::{Disequilibrium, Measurement, ProjectionRecord};
+use super::projection::{Disequilibrium, Measurement, ProjectionRecord, SamplingUnit};
 use super::scenario::{LocalScenario, Offsets};
 use super::thresholds::{HabitatClasses, guinotte_2003};
 use super::{ProjectionSettings, SiteInput};
@@ -31,12 +32,18 @@ pub fn from_loaded_site(
 
 /// The records of a loaded site as the outlook takes them.
 pub fn site_input(loaded: &LoadedSite) -> SiteInput {
-    let ta_fit_rmse = loaded.baseline.ta_salinity.as_ref().map(|f| f.rmse_umol_kg);
+    let fit = loaded.baseline.ta_salinity.as_ref();
+    let mut stations: Vec<&str> = Vec::new();
     let records: Vec<ProjectionRecord> = loaded
         .samples
         .iter()
-        .filter_map(|smp| projectable(smp, ta_fit_rmse))
-        .filter_map(Result::ok)
+        .filter_map(|smp| {
+            let mut r = projectable(smp, fit)?.ok()?;
+            if let Some(u) = r.unit.as_mut() {
+                u.station = station_number(&mut stations, &smp.station);
+            }
+            Some(r)
+        })
         .collect();
     SiteInput {
         name: loaded.site.site.name.clone(),
@@ -49,11 +56,14 @@ pub fn site_input(loaded: &LoadedSite) -> SiteInput {
 
 /// The projection record of a sample the outlook uses (solved, above the site's salinity
 /// floor), or why the projection cannot take it; `None` for rows the site left out.
-fn projectable(smp: &Sample, ta_fit_rmse: Option<f64>) -> Option<Result<ProjectionRecord, String>> {
+fn projectable(
+    smp: &Sample,
+    fit: Option<&TaSalinityFit>,
+) -> Option<Result<ProjectionRecord, String>> {
     if !smp.is_used() {
         return None;
     }
-    let r = record_of(smp, ta_fit_rmse)?;
+    let r = record_of(smp, fit)?;
     Some(r.validate().map(|()| r).map_err(|e| e.to_string()))
 }
 
@@ -61,11 +71,11 @@ fn projectable(smp: &Sample, ta_fit_rmse: Option<f64>) -> Option<Result<Projecti
 /// limits), as warnings naming file and line: the same test [`from_loaded_site`] applies, so
 /// that `check` shows what `project` will leave out.
 pub fn rows_left_out(loaded: &LoadedSite) -> Diagnostics {
-    let rmse = loaded.baseline.ta_salinity.as_ref().map(|f| f.rmse_umol_kg);
+    let fit = loaded.baseline.ta_salinity.as_ref();
     loaded
         .samples
         .iter()
-        .filter_map(|smp| match projectable(smp, rmse)? {
+        .filter_map(|smp| match projectable(smp, fit)? {
             Ok(_) => None,
             Err(m) => Some(
                 Diagnostic::warning(format!("{m}; the row is left out of the outlook"))
@@ -89,11 +99,11 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
     };
     let site_file = &loaded.site;
 
-    let rmse = loaded.baseline.ta_salinity.as_ref().map(|f| f.rmse_umol_kg);
+    let fit = loaded.baseline.ta_salinity.as_ref();
     if !loaded
         .samples
         .iter()
-        .any(|smp| matches!(projectable(smp, rmse), Some(Ok(_))))
+        .any(|smp| matches!(projectable(smp, fit), Some(Ok(_))))
     {
         return Err(err(
             "records",
@@ -179,7 +189,7 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
 }
 
 /// The projection record of one sample (`None` when its state was not solved).
-fn record_of(smp: &Sample, ta_fit_rmse: Option<f64>) -> Option<ProjectionRecord> {
+fn record_of(smp: &Sample, fit: Option<&TaSalinityFit>) -> Option<ProjectionRecord> {
     let st = smp.state?;
     let m = &smp.measured;
     let ta = if smp.ta_estimated {
@@ -198,7 +208,11 @@ fn record_of(smp: &Sample, ta_fit_rmse: Option<f64>) -> Option<ProjectionRecord>
         Pair::PhPco2 => (Input::PhT(m.ph_t()?), Input::Pco2(m.pco2()?)),
         Pair::PhFco2 => (Input::PhT(m.ph_t()?), Input::Fco2(m.fco2()?)),
     };
-    let sd_a = if smp.ta_estimated { ta_fit_rmse } else { None };
+    let sd_a = if smp.ta_estimated {
+        fit.map(|f| f.prediction_se_at(smp.salinity))
+    } else {
+        None
+    };
     Some(ProjectionRecord {
         label: format!(
             "{}:{} (station {})",
@@ -221,7 +235,29 @@ fn record_of(smp: &Sample, ta_fit_rmse: Option<f64>) -> Option<ProjectionRecord>
             sd_a,
             sd_b: None,
         }),
+        unit: Some(SamplingUnit {
+            // Numbered by `site_input`.
+            station: 0,
+            day: smp.time.date_naive().num_days_from_ce(),
+            continuous: smp.kind == schema::RecordKind::Sensor,
+            minute: smp.has_time.then(|| {
+                let t = smp.time.time();
+                u16::try_from(t.hour() * 60 + t.minute()).unwrap_or(0)
+            }),
+        }),
     })
+}
+
+/// The number of station `name` in order of first appearance.
+fn station_number<'a>(seen: &mut Vec<&'a str>, name: &'a str) -> u32 {
+    let i = match seen.iter().position(|s| *s == name) {
+        Some(i) => i,
+        None => {
+            seen.push(name);
+            seen.len() - 1
+        }
+    };
+    u32::try_from(i).unwrap_or(u32::MAX)
 }
 
 #[cfg(test)]

@@ -33,19 +33,18 @@ use crate::chem::MethodSet;
 
 pub use calcification::{CalcificationSettings, Relationship};
 pub use ensemble::{
-    EnsembleSettings, MeasurementUncertainty, NoProgress, Progress, member_states, quantile_sorted,
-    run,
+    EnsembleSettings, MeasurementUncertainty, NoProgress, Progress, quantile_sorted, run,
 };
 pub use from_site::from_loaded_site;
 pub use output::{OutputFormat, OutputTable};
 pub use pathways::{Observed, Pathway, PathwayError, Ssp};
 pub use projection::{
-    Disequilibrium, Measurement, ProjectedPoint, ProjectionRecord, project_record,
+    Disequilibrium, Measurement, ProjectedPoint, ProjectionRecord, SamplingUnit, project_record,
 };
 pub use result::{
     BelowProbability, Criterion, Crossing, CrossingGroup, CrossingKind, CrossingYears, GroupId,
     Note, Outlook, PathwayId, QuantilePoint, QuantileSeries, Quantiles, Quantity, RelationshipId,
-    ScenarioId,
+    ScenarioId, TimeBelow,
 };
 pub use scenario::{LocalScenario, Offsets};
 pub use thresholds::HabitatClasses;

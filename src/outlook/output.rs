@@ -5,7 +5,7 @@
 //!
 //! Numbers are written with fixed decimals per quantity (CSV) or rounded to the same decimals
 //! (JSON), so equal inputs give byte-identical files. Every numeric field carries its unit in
-//! its name (`pco2_uatm`, `net_calc_kg_m2_yr_...`, `threshold_omega_ar`, `prob_below_pct`).
+//! its name (`pco2_uatm`, `net_calc_kg_m2_yr_...`, `threshold_omega_ar`, `chance_mean_below_pct`, `pct_time_below`).
 
 use std::borrow::Cow;
 use std::fmt;
@@ -69,7 +69,8 @@ pub enum OutputTable {
     Quantiles,
     /// First years below each habitat threshold.
     Crossings,
-    /// Probability of lying below each habitat threshold per horizon year.
+    /// Per horizon year and habitat threshold: the chance that the season's mean lies below
+    /// it (uncertainty) and the share of time below it (variability).
     Thresholds,
     /// The thermal-stress outlook: observed and projected annual maximum DHW.
     Heat,
@@ -343,10 +344,18 @@ impl Outlook {
             "season",
             "class_left",
             "threshold_omega_ar",
-            "prob_below_pct",
+            "chance_mean_below_pct",
+            "pct_time_below",
             "median_class",
         ])?;
         for r in &self.probabilities {
+            let time = self.time_below_at(
+                Some(r.pathway),
+                r.scenario,
+                r.group,
+                Some(r.year),
+                r.threshold_omega_ar,
+            );
             c.write_record([
                 self.pathway(r.pathway)
                     .map_or("", |p| p.name.as_str())
@@ -357,6 +366,7 @@ impl Outlook {
                 r.class_left.clone(),
                 fixed(r.threshold_omega_ar, 2),
                 fixed(r.prob_below_pct, 1),
+                fixed(time.unwrap_or(f64::NAN), 1),
                 r.median_class.clone(),
             ])?;
         }
@@ -474,8 +484,19 @@ struct JsonProbability<'a> {
     season: &'a str,
     class_left: &'a str,
     threshold_omega_ar: Option<f64>,
-    prob_below_pct: Option<f64>,
+    /// Uncertainty: chance that the season's mean lies below the threshold.
+    chance_mean_below_pct: Option<f64>,
+    /// Variability: time-weighted share of the records below the threshold.
+    pct_time_below: Option<f64>,
     median_class: &'a str,
+}
+
+#[derive(Serialize)]
+struct JsonTimeBelow<'a> {
+    season: &'a str,
+    class_left: &'a str,
+    threshold_omega_ar: Option<f64>,
+    pct_time_below: Option<f64>,
 }
 
 #[derive(Serialize)]
@@ -484,6 +505,8 @@ struct JsonThresholds<'a> {
     classes: Vec<JsonClass<'a>>,
     crossings: Vec<JsonCrossing<'a>>,
     probabilities: Vec<JsonProbability<'a>>,
+    /// Share of time below each threshold in the records as sampled.
+    time_below_as_sampled: Vec<JsonTimeBelow<'a>>,
 }
 
 #[derive(Serialize)]
@@ -617,8 +640,28 @@ impl<'a> From<&'a Outlook> for JsonDoc<'a> {
                         season: o.group_label(r.group),
                         class_left: &r.class_left,
                         threshold_omega_ar: rounded(r.threshold_omega_ar, 4),
-                        prob_below_pct: rounded(r.prob_below_pct, 1),
+                        chance_mean_below_pct: rounded(r.prob_below_pct, 1),
+                        pct_time_below: o
+                            .time_below_at(
+                                Some(r.pathway),
+                                r.scenario,
+                                r.group,
+                                Some(r.year),
+                                r.threshold_omega_ar,
+                            )
+                            .and_then(|v| rounded(v, 1)),
                         median_class: &r.median_class,
+                    })
+                    .collect(),
+                time_below_as_sampled: o
+                    .time_below
+                    .iter()
+                    .filter(|t| t.year.is_none())
+                    .map(|t| JsonTimeBelow {
+                        season: o.group_label(t.group),
+                        class_left: &t.class_left,
+                        threshold_omega_ar: rounded(t.threshold_omega_ar, 4),
+                        pct_time_below: rounded(t.pct_time_below, 1),
                     })
                     .collect(),
             },

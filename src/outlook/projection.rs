@@ -124,6 +124,24 @@ pub struct ProjectionRecord {
     pub pco2: f64,
     /// The measured pair behind `ta` and `pco2` (`None`: taken as measured TA and pCO2).
     pub measured: Option<Measurement>,
+    /// The station-day the record belongs to (`None`: the record is a unit of its own).
+    pub unit: Option<SamplingUnit>,
+}
+
+/// One station on one local calendar day. Seasonal means weight every sampling unit
+/// equally and the records inside a unit equally (time weighting), so that an hourly sensor
+/// series does not outweigh bottles taken once a day.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub struct SamplingUnit {
+    /// Station number within the site (in order of first appearance).
+    pub station: u32,
+    /// Local calendar day, days from 0001-01-01 (chrono's `num_days_from_ce`).
+    pub day: i32,
+    /// True for a unit of a continuous (sensor) series: consecutive days are then
+    /// autocorrelated and the seasonal-mean bootstrap draws them in blocks.
+    pub continuous: bool,
+    /// Local clock time of the record, minutes after midnight (`None`: date only).
+    pub minute: Option<u16>,
 }
 
 impl ProjectionRecord {
@@ -246,10 +264,23 @@ impl YearConditions {
         methods: &MethodSet,
         year: i32,
     ) -> Result<YearConditions, OutlookError> {
+        let change = warming.map_or(0.0, |w| w.change_between(rec.sample_year, year));
+        YearConditions::with_change(rec, pathway, observed, change, methods, year)
+    }
+
+    /// Conditions of `rec` in `year` with `change_c` °C added to its temperature.
+    pub fn with_change(
+        rec: &ProjectionRecord,
+        pathway: &Pathway,
+        observed: &Observed,
+        change_c: f64,
+        methods: &MethodSet,
+        year: i32,
+    ) -> Result<YearConditions, OutlookError> {
         let xco2 = pathway
             .xco2_ppm(observed, year)
             .map_err(OutlookError::Pathway)?;
-        let temp_c = rec.temp_c + warming.map_or(0.0, |w| w.change_between(rec.sample_year, year));
+        let temp_c = rec.temp_c + change_c;
         let constants = Constants::new(&rec.conditions_at(temp_c), methods);
         Ok(YearConditions {
             year,
@@ -360,6 +391,7 @@ mod tests {
             ta,
             pco2,
             measured: None,
+            unit: None,
         }
     }
 

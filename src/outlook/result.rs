@@ -226,10 +226,12 @@ impl Criterion {
     }
 }
 
-/// First horizon years at which a quantile meets the criterion (`None`: not within the
-/// horizon). For the 5th percentile at least 5 % of the members meet it then (an early
-/// warning); for the median at least half; for the 95th percentile at least 95 % (nearly
-/// certain under the model's assumptions).
+/// The year in which the criterion is first met, as quantiles over the members (`None`: not
+/// by the last horizon year). Each member's year comes from its annual trajectory (computed
+/// every fifth year and at each horizon year, linear in between); the quantile is the
+/// earliest year by which that share of the members has met it (nearest rank): `p05` is an
+/// early warning (5 % of members), `p50` the median, `p95` the year by which 95 % have.
+/// A member already meeting the criterion as sampled counts with the sampling year.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct CrossingYears {
     pub p05: Option<i32>,
@@ -250,7 +252,8 @@ pub struct Crossing {
     pub met_at_baseline: bool,
 }
 
-/// Chance of Omega_ar below one habitat threshold at one horizon year.
+/// Chance that the group's time-weighted mean Omega_ar lies below one habitat threshold at
+/// one horizon year (uncertainty of the mean, not the share of time below).
 #[derive(Clone, Debug, PartialEq)]
 pub struct BelowProbability {
     pub pathway: PathwayId,
@@ -264,6 +267,24 @@ pub struct BelowProbability {
     pub prob_below_pct: f64,
     /// Class of the median Omega_ar.
     pub median_class: String,
+}
+
+/// Share of time below one habitat threshold: how much of the time the water is below it
+/// (variability between records: hour, tide, day, station), not how well the mean is known.
+#[derive(Clone, Debug, PartialEq)]
+pub struct TimeBelow {
+    /// `None`: the records as sampled (the same under every pathway).
+    pub pathway: Option<PathwayId>,
+    pub scenario: ScenarioId,
+    pub group: GroupId,
+    /// `None`: as sampled.
+    pub year: Option<i32>,
+    /// The class whose lower bound this is.
+    pub class_left: String,
+    pub threshold_omega_ar: f64,
+    /// Time-weighted percent of the records below the threshold (station-days equal, the
+    /// records of a station-day equal), each record projected on its own with central values.
+    pub pct_time_below: f64,
 }
 
 /// A note on the run, with the data to word it (worded where it is shown).
@@ -370,8 +391,12 @@ pub struct Outlook {
     /// Quantile series, ordered by pathway, scenario, group and quantity.
     pub series: Vec<QuantileSeries>,
     pub crossings: Vec<Crossing>,
-    /// Ordered by pathway, scenario, year, group and threshold.
+    /// Uncertainty: chance that a group's mean lies below a threshold; ordered by pathway,
+    /// scenario, year, group and threshold.
     pub probabilities: Vec<BelowProbability>,
+    /// Variability: share of time below a threshold; as sampled first (by group and
+    /// threshold), then by pathway, scenario, year, group and threshold.
+    pub time_below: Vec<TimeBelow>,
     pub classes: HabitatClasses,
     pub relationships: Vec<Relationship>,
     /// The site's measured calcification rate, when it gives one.
@@ -467,6 +492,27 @@ impl Outlook {
     }
 
     /// Member-years that could not be solved (0 when every member was solved).
+    /// Share of time below `threshold` in `group` (`pathway`/`year` `None`: as sampled).
+    pub fn time_below_at(
+        &self,
+        pathway: Option<PathwayId>,
+        scenario: ScenarioId,
+        group: GroupId,
+        year: Option<i32>,
+        threshold: f64,
+    ) -> Option<f64> {
+        self.time_below
+            .iter()
+            .find(|t| {
+                t.pathway == pathway
+                    && (pathway.is_none() || t.scenario == scenario)
+                    && t.group == group
+                    && t.year == year
+                    && t.threshold_omega_ar == threshold
+            })
+            .map(|t| t.pct_time_below)
+    }
+
     pub fn unsolved_member_years(&self) -> usize {
         self.notes
             .iter()

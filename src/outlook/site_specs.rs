@@ -15,6 +15,7 @@ use super::PathwaySpec;
 use super::calcification::{CalcificationSettings, builtin_relationships};
 use super::ensemble::MAX_MEMBERS;
 use super::pathways::{BUILTIN_NAMES, Observed, Pathway, USER_PPM_RANGE, USER_YEAR_RANGE};
+use super::warming::Warming;
 
 /// Horizon years accepted in `[projection] horizon_years`.
 pub const HORIZON_YEAR_RANGE: (i32, i32) = (2000, 2500);
@@ -210,7 +211,68 @@ fn check_pathway_names(e: &mut Errors<'_>, user: &[(String, Pathway)]) -> Vec<Pa
         };
         e.push(&field, format!("unknown pathway `{name}`"), help);
     }
+    apply_sst_changes(e, &mut out, &observed);
     out
+}
+
+/// Plausible range of a stated SST change, 2081–2100 relative to 1995–2014, °C (wider than
+/// any AR6 pathway's very likely range of global-mean SST change, to allow regional values).
+const SST_CHANGE_RANGE_C: (f64, f64) = (-1.0, 6.0);
+
+/// Applies `[[projection.sst_change]]`: the site's own warming for listed pathways.
+fn apply_sst_changes(e: &mut Errors<'_>, specs: &mut [PathwaySpec], observed: &Observed) {
+    let changes = e.loaded.site.projection.sst_change.clone();
+    for (i, c) in changes.iter().enumerate() {
+        let field = format!("projection.sst_change[{i}]");
+        let (lo, hi) = SST_CHANGE_RANGE_C;
+        if !c.change_c.is_finite() || !(lo..=hi).contains(&c.change_c) {
+            e.push(
+                &format!("{field}.change_c"),
+                format!(
+                    "SST change {} degC is outside {lo} to {hi} degC",
+                    c.change_c
+                ),
+                "give the change of the 2081-2100 mean relative to 1995-2014 in degC",
+            );
+            continue;
+        }
+        if c.source.trim().is_empty() {
+            e.push(
+                &format!("{field}.source"),
+                "the SST change has no source",
+                "name the regional projection or study the value comes from",
+            );
+            continue;
+        }
+        if changes.iter().take(i).any(|o| o.pathway == c.pathway) {
+            e.push(
+                &format!("{field}.pathway"),
+                format!("pathway `{}` has a second SST change", c.pathway),
+                "give one sst_change per pathway",
+            );
+            continue;
+        }
+        match specs.iter_mut().find(|s| s.pathway.name == c.pathway) {
+            Some(spec) => {
+                spec.warming = Warming::stated(&spec.pathway, observed, c.change_c, &c.source);
+            }
+            None => e.push(
+                &format!("{field}.pathway"),
+                format!(
+                    "pathway `{}` is not among the projected pathways",
+                    c.pathway
+                ),
+                format!(
+                    "use one of: {}",
+                    specs
+                        .iter()
+                        .map(|s| s.pathway.name.as_str())
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                ),
+            ),
+        }
+    }
 }
 
 /// The pathways used when `[projection] pathways` is not given.

@@ -349,6 +349,16 @@ pub struct UserPathway {
     pub points: Vec<[f64; 2]>,
 }
 
+/// The site's own sea-surface warming for one pathway (e.g. from a regional projection):
+/// the change of the 2081–2100 mean relative to 1995–2014, °C, with its source.
+#[derive(Clone, Debug, Deserialize, Serialize, PartialEq)]
+#[serde(deny_unknown_fields)]
+pub struct SstChange {
+    pub pathway: String,
+    pub change_c: f64,
+    pub source: String,
+}
+
 /// `[projection]`, kept as written: the outlook stage checks the names, years and sizes
 /// (`outlook::site_specs`); the site knows no pathway names.
 #[derive(Clone, Debug, Deserialize, Serialize, PartialEq)]
@@ -373,6 +383,9 @@ pub struct ProjectionSpec {
     /// Seed of the Monte Carlo generator (same seed, same inputs: same numbers).
     #[serde(default = "default_seed")]
     pub seed: u64,
+    /// The site's own warming per pathway, replacing the global default for that pathway.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub sst_change: Vec<SstChange>,
 }
 
 fn default_true() -> bool {
@@ -399,6 +412,7 @@ impl Default for ProjectionSpec {
             warming: true,
             members: DEFAULT_MEMBERS,
             seed: DEFAULT_SEED,
+            sst_change: Vec::new(),
         }
     }
 }

@@ -2,13 +2,13 @@
 
 use super::super::result::{
     BelowProbability, Criterion, Crossing, CrossingGroup, CrossingYears, GroupInfo, Note, Outlook,
-    PathwayId, PathwayInfo, QuantileSeries, Quantiles, Quantity, ScenarioId, ScenarioInfo,
-    SettingsInfo,
+    PathwayId, PathwayInfo, QuantileSeries, Quantity, ScenarioId, ScenarioInfo, SettingsInfo,
+    TimeBelow,
 };
-use super::super::thresholds::first_year_below;
 use super::AGGREGATE_LABEL;
+use super::central::{Central, OMEGA_AR};
 use super::prepare::Prepared;
-use super::run::{TaskOut, VariantSummary};
+use super::run::{TaskOut, VariantSummary, time_share_below};
 
 /// One task's summary of one variant, found by pathway, group and variant.
 struct Summaries<'a> {
@@ -32,7 +32,7 @@ fn scenario_id(variant: usize) -> ScenarioId {
     }
 }
 
-pub(super) fn assemble(prep: &Prepared<'_>, outs: &[TaskOut]) -> Outlook {
+pub(super) fn assemble(prep: &Prepared<'_>, centrals: &[Central], outs: &[TaskOut]) -> Outlook {
     let s = prep.s;
     let sums = Summaries {
         outs,
@@ -41,6 +41,7 @@ pub(super) fn assemble(prep: &Prepared<'_>, outs: &[TaskOut]) -> Outlook {
     let mut series = Vec::new();
     let mut probabilities = Vec::new();
     let mut crossings = Vec::new();
+    let mut time_below = present_time_below(prep);
     for p in 0..s.pathways.len() {
         for vi in 0..prep.variants.len() {
             let per_group: Vec<Option<&VariantSummary>> = (0..prep.groups.len())
@@ -59,17 +60,20 @@ pub(super) fn assemble(prep: &Prepared<'_>, outs: &[TaskOut]) -> Outlook {
                 }
             }
             probabilities.extend(below_probabilities(prep, p, vi, &per_group));
+            time_below.extend(projected_time_below(prep, p, vi, &per_group));
             crossings.extend(crossings_of(prep, p, vi, &per_group));
         }
     }
     let mut notes = prep.notes.clone();
-    let failures: usize = outs.iter().map(|o| o.failures).sum();
+    let failures: usize = outs.iter().map(|o| o.failures).sum::<usize>()
+        + centrals.iter().map(|c| c.failures).sum::<usize>();
     if failures > 0 {
         notes.push(Note::UnsolvedMembers {
             member_years: failures,
-            first: outs
+            first: centrals
                 .iter()
-                .find_map(|o| o.first_failure.clone())
+                .find_map(|c| c.first_failure.clone())
+                .or_else(|| outs.iter().find_map(|o| o.first_failure.clone()))
                 .unwrap_or_default(),
         });
     }
@@ -98,6 +102,7 @@ pub(super) fn assemble(prep: &Prepared<'_>, outs: &[TaskOut]) -> Outlook {
         series,
         crossings,
         probabilities,
+        time_below,
         classes: s.classes.clone(),
         relationships: s.calcification.relationships.clone(),
         site_rate: s.calcification.site_rate.clone(),
@@ -139,33 +144,115 @@ fn below_probabilities(
     out
 }
 
-/// A quantity's quantile level over the horizon years (NaN where missing).
-fn level_series(
-    vs: Option<&VariantSummary>,
-    q: Quantity,
-    pick: fn(&Quantiles) -> f64,
-    ny: usize,
-) -> Vec<f64> {
-    match vs.and_then(|v| v.series_of(q)) {
-        Some(points) => points.iter().map(|pt| pick(&pt.q)).collect(),
-        None => vec![f64::NAN; ny],
+/// Share of time below each threshold as sampled, per group.
+fn present_time_below(prep: &Prepared<'_>) -> Vec<TimeBelow> {
+    let mut out = Vec::new();
+    for g in &prep.groups {
+        for (class, t) in prep.s.classes.thresholds() {
+            out.push(TimeBelow {
+                pathway: None,
+                scenario: ScenarioId::Base,
+                group: g.id,
+                year: None,
+                threshold_omega_ar: t,
+                pct_time_below: time_share_below(g, t, |r| {
+                    prep.present.get(r).map(|x| x[OMEGA_AR])
+                }),
+                class_left: class,
+            });
+        }
+    }
+    out
+}
+
+/// Share of time below each threshold at the horizon years, ordered by year, group and
+/// threshold.
+fn projected_time_below(
+    prep: &Prepared<'_>,
+    p: usize,
+    vi: usize,
+    per_group: &[Option<&VariantSummary>],
+) -> Vec<TimeBelow> {
+    let mut out = Vec::new();
+    for (yi, &year) in prep.s.years.iter().enumerate() {
+        for (g, vs) in prep.groups.iter().zip(per_group) {
+            let Some(vs) = vs else { continue };
+            for share in &vs.time_below {
+                out.push(TimeBelow {
+                    pathway: Some(PathwayId(p)),
+                    scenario: scenario_id(vi),
+                    group: g.id,
+                    year: Some(year),
+                    class_left: share.class.clone(),
+                    threshold_omega_ar: share.threshold,
+                    pct_time_below: share.pct_below.get(yi).copied().unwrap_or(f64::NAN),
+                });
+            }
+        }
+    }
+    out
+}
+
+/// One member's Omega_ar: as sampled (in `start`, the latest sampling year) and at the
+/// computed years.
+struct Trajectory<'a> {
+    start: i32,
+    present: f64,
+    knots: &'a [i32],
+    values: Vec<f64>,
+}
+
+impl Trajectory<'_> {
+    /// The first whole year after `start` whose value (linear between computed years) is
+    /// below `t`; `start` itself when already below as sampled; `None` if never by the last
+    /// computed year.
+    fn first_below(&self, t: f64) -> Option<i32> {
+        if self.present < t {
+            return Some(self.start);
+        }
+        let (mut y0, mut v0) = (self.start, self.present);
+        for (&y1, &v1) in self.knots.iter().zip(&self.values) {
+            if !v1.is_finite() || y1 <= y0 {
+                continue;
+            }
+            if v1 < t {
+                // v0 >= t > v1: the crossing lies in (y0, y1]; first whole year below.
+                let span = f64::from(y1 - y0);
+                for y in (y0 + 1)..=y1 {
+                    let v = v0 + (v1 - v0) * f64::from(y - y0) / span;
+                    if v < t {
+                        return Some(y);
+                    }
+                }
+                return Some(y1);
+            }
+            (y0, v0) = (y1, v1);
+        }
+        None
     }
 }
 
-fn p05(q: &Quantiles) -> f64 {
-    q.p05
-}
-fn p50(q: &Quantiles) -> f64 {
-    q.p50
-}
-fn p95(q: &Quantiles) -> f64 {
-    q.p95
+/// Nearest-rank quantiles (5 %, 50 %, 95 %) of crossing years, "never" counting as later
+/// than every year.
+fn crossing_quantiles(mut years: Vec<Option<i32>>) -> CrossingYears {
+    years.sort_by_key(|y| y.unwrap_or(i32::MAX));
+    let n = years.len();
+    let at = |p: f64| {
+        if n == 0 {
+            return None;
+        }
+        let rank = ((p * n as f64).ceil() as usize).clamp(1, n);
+        years.get(rank - 1).copied().flatten()
+    };
+    CrossingYears {
+        p05: at(0.05),
+        p50: at(0.50),
+        p95: at(0.95),
+    }
 }
 
-/// The three crossing levels: 5 %, median, 95 %.
-const CROSSING_LEVELS: [fn(&Quantiles) -> f64; 3] = [p05, p50, p95];
-
-/// Crossing rows of Omega_ar below each habitat threshold per group, then for the worst season (lowest season quantile each year).
+/// Crossing rows of each group's mean Omega_ar below each habitat threshold, then of the
+/// limiting season (each member's lowest season mean in each year).
 fn crossings_of(
     prep: &Prepared<'_>,
     p: usize,
@@ -173,68 +260,77 @@ fn crossings_of(
     per_group: &[Option<&VariantSummary>],
 ) -> Vec<Crossing> {
     let s = prep.s;
-    let ny = s.years.len();
-    let seasons: Vec<Option<&VariantSummary>> = prep
+    let nk = prep.knots.len();
+    let members = s.ensemble.members.max(1);
+    let member_of = |g: &super::prepare::Group, vs: &VariantSummary, m: usize| Trajectory {
+        start: g.sample_year_max,
+        present: vs.omega_present.get(m).copied().unwrap_or(f64::NAN),
+        knots: &prep.knots,
+        values: vs
+            .omega_knots
+            .get(m * nk..(m + 1) * nk)
+            .map(<[f64]>::to_vec)
+            .unwrap_or_default(),
+    };
+    // (group, trajectories, median present)
+    let mut sets: Vec<(CrossingGroup, Vec<Trajectory<'_>>)> = Vec::new();
+    for (g, vs) in prep.groups.iter().zip(per_group) {
+        let Some(vs) = vs else { continue };
+        sets.push((
+            CrossingGroup::Group(g.id),
+            (0..members).map(|m| member_of(g, vs, m)).collect(),
+        ));
+    }
+    let seasons: Vec<(&super::prepare::Group, &VariantSummary)> = prep
         .groups
         .iter()
         .zip(per_group)
         .filter(|(g, _)| !g.aggregate())
-        .map(|(_, vs)| *vs)
+        .filter_map(|(g, vs)| Some((g, (*vs)?)))
         .collect();
-    // (group, baseline Omega_ar, series of a quantity at a level)
-    type Levels<'b> = Box<dyn Fn(Quantity, fn(&Quantiles) -> f64) -> Vec<f64> + 'b>;
-    let mut labels: Vec<(CrossingGroup, f64, Levels<'_>)> = Vec::new();
-    for (g, vs) in prep.groups.iter().zip(per_group) {
-        let vs = *vs;
-        labels.push((
-            CrossingGroup::Group(g.id),
-            g.omega_b,
-            Box::new(move |q, pick| level_series(vs, q, pick, ny)),
-        ));
-    }
-    let season_groups: Vec<_> = prep.groups.iter().filter(|g| !g.aggregate()).collect();
-    if season_groups.len() >= 2 {
-        let omega_b = season_groups
-            .iter()
-            .map(|g| g.omega_b)
-            .fold(f64::INFINITY, |acc, x| if x < acc { x } else { acc });
-        let seasons = seasons.clone();
-        labels.push((
-            CrossingGroup::WorstSeason,
-            omega_b,
-            Box::new(move |q, pick| {
-                let per: Vec<Vec<f64>> = seasons
-                    .iter()
-                    .map(|vs| level_series(*vs, q, pick, ny))
-                    .collect();
-                (0..ny)
-                    .map(|yi| {
-                        per.iter()
-                            .filter_map(|v| v.get(yi).copied())
-                            .filter(|x| x.is_finite())
-                            .fold(f64::NAN, f64::min)
-                    })
-                    .collect()
-            }),
-        ));
+    if seasons.len() >= 2 {
+        let worst = (0..members)
+            .map(|m| {
+                let each: Vec<Trajectory<'_>> =
+                    seasons.iter().map(|(g, vs)| member_of(g, vs, m)).collect();
+                let min = |f: &dyn Fn(&Trajectory<'_>) -> f64| {
+                    each.iter()
+                        .map(f)
+                        .filter(|x| x.is_finite())
+                        .fold(f64::NAN, f64::min)
+                };
+                Trajectory {
+                    start: each.iter().map(|t| t.start).max().unwrap_or(0),
+                    present: min(&|t| t.present),
+                    knots: &prep.knots,
+                    values: (0..nk)
+                        .map(|k| min(&|t| t.values.get(k).copied().unwrap_or(f64::NAN)))
+                        .collect(),
+                }
+            })
+            .collect();
+        sets.push((CrossingGroup::WorstSeason, worst));
     }
     let mut out = Vec::new();
-    for (group, omega_b, get) in &labels {
-        let first = |q: Quantity, find: &dyn Fn(&[f64]) -> Option<i32>| {
-            let [p05, p50, p95] = CROSSING_LEVELS.map(|pick| find(&get(q, pick)));
-            CrossingYears { p05, p50, p95 }
-        };
+    for (group, members) in &sets {
+        let mut present: Vec<f64> = members
+            .iter()
+            .map(|t| t.present)
+            .filter(|x| x.is_finite())
+            .collect();
+        present.sort_by(f64::total_cmp);
+        let median_present = super::quantiles::quantile_sorted(&present, 0.5);
         for (class, t) in s.classes.thresholds() {
             out.push(Crossing {
                 pathway: PathwayId(p),
                 scenario: scenario_id(vi),
                 group: *group,
-                first_year: first(Quantity::OmegaAr, &|v| first_year_below(&s.years, v, t)),
+                first_year: crossing_quantiles(members.iter().map(|m| m.first_below(t)).collect()),
                 criterion: Criterion::OmegaArBelow {
                     class,
                     threshold_omega_ar: t,
                 },
-                met_at_baseline: *omega_b < t,
+                met_at_baseline: median_present < t,
             });
         }
     }
@@ -261,7 +357,8 @@ fn settings_info(prep: &Prepared<'_>) -> SettingsInfo {
             format!(
                 "standard uncertainties of each record's measured pair: TA {} umol/kg, DIC {} \
                  umol/kg, pH {}, pCO2/fCO2 {} % (unless a record carries its own, e.g. TA \
-                 estimated from salinity); the record is re-solved per member",
+                 estimated from salinity), divided by the square root of the station-days for \
+                 the mean and propagated through the season's representative record",
                 e.measurement.ta_umol_kg,
                 e.measurement.dic_umol_kg,
                 e.measurement.ph,
@@ -272,11 +369,12 @@ fn settings_info(prep: &Prepared<'_>) -> SettingsInfo {
         },
         record_variability: if e.members > 0 {
             format!(
-                "bootstrap: each member draws one record of its season; \"{AGGREGATE_LABEL}\" \
-                 draws from all records"
+                "bootstrap of the time-weighted seasonal mean: each member resamples the \
+                 season's station-days with replacement (consecutive days of sensor series in \
+                 blocks of round(n^(1/3)) days); \"{AGGREGATE_LABEL}\" resamples all station-days"
             )
         } else {
-            "ensemble off: quantiles across the records of each season".to_string()
+            "ensemble off: the time-weighted mean of each season with central values".to_string()
         },
         methods: prep.site.methods.citations(),
         observed_co2_source: prep.site.observed.source().to_string(),

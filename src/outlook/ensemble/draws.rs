@@ -4,7 +4,6 @@ use crate::chem::{self, Constants, Input, MethodSet, ORR2018, Perturbation};
 
 use super::super::ProjectionRecord;
 use super::super::projection::shifted;
-use super::super::rng::Xoshiro256;
 use super::settings::EnsembleSettings;
 
 /// Shifts of the constants for eight standard normal deviates, in the order pK0, pK1, pK2,
@@ -26,48 +25,13 @@ pub fn constants_perturbation(z: [f64; 8]) -> Perturbation {
     }
 }
 
-/// One member's draws.
+/// A member's draws as applied to one record: the constants' shifts and the standard
+/// normal deviates of the errors of the record's two measured parameters.
 #[derive(Clone, Copy, Debug)]
 pub(super) struct MemberDraw {
-    /// Index into `site.records`.
-    pub record: usize,
-    /// Index into the group's record list.
-    pub local: usize,
     pub perturbation: Option<Perturbation>,
-    /// Standard normal deviates of the errors of the record's two measured parameters.
     pub z_a: f64,
     pub z_b: f64,
-}
-
-/// The draws of member `m` of a group with records `records` (indices into the site's
-/// records) and stream key `key`. With the ensemble off, member `m` is the group's `m`-th
-/// record with central constants and no measurement errors.
-pub(super) fn draw(e: &EnsembleSettings, records: &[usize], key: u64, m: usize) -> MemberDraw {
-    if e.members == 0 {
-        return MemberDraw {
-            record: records.get(m).copied().unwrap_or(0),
-            local: m,
-            perturbation: None,
-            z_a: 0.0,
-            z_b: 0.0,
-        };
-    }
-    let mut rng = Xoshiro256::for_stream(&[e.seed, key, m as u64]);
-    let local = rng.below(records.len());
-    let record = records.get(local).copied().unwrap_or(0);
-    // All normals are always drawn, in a fixed order, so that switching one component off
-    // does not shift the others.
-    let z: [f64; 10] = std::array::from_fn(|_| rng.normal());
-    let perturbation = e
-        .constants
-        .then(|| constants_perturbation([z[0], z[1], z[2], z[3], z[4], z[5], z[6], z[7]]));
-    MemberDraw {
-        record,
-        local,
-        perturbation,
-        z_a: z[8],
-        z_b: z[9],
-    }
 }
 
 /// The member's TA and seawater pCO2 at sampling: the record's measured pair with the
@@ -127,6 +91,7 @@ pub(super) fn member_start(
 
 #[cfg(test)]
 mod tests {
+    use super::super::super::rng::Xoshiro256;
     use super::*;
     use crate::chem::{BoronTotal, Conditions, K1K2, KfSource};
 

@@ -1,45 +1,59 @@
 //! The seeded Monte Carlo ensemble and the assembly of the outlook.
 //!
-//! Each member of a season (or of the all-records aggregate) draws, from its own random
-//! stream:
-//! 1. a record of that season, uniformly with replacement (a bootstrap over records: the
-//!    record-to-record variability within the season);
-//! 2. shifts of pK0, pK1, pK2, pKB, pKW, pK*sp(aragonite), pK*sp(calcite) and a factor on
-//!    total boron, normal with the standard uncertainties of Orr et al. (2018), Mar. Chem.
-//!    207:84–107 (`chem::ORR2018`);
-//! 3. errors of the record's two measured parameters, normal with the site's standard
-//!    uncertainties; the record is then re-solved at its sampling conditions with the member's
-//!    constants, giving the member's TA and seawater pCO2 at sampling. (So a record measured
-//!    as TA + DIC keeps its measured DIC at the sampling year under every draw of the
-//!    constants, while one measured as TA + pCO2 keeps its pCO2.)
+//! The ensemble answers how well a season's time-weighted mean state is known in each year
+//! (uncertainty); how much of the time the water lies below a level (variability) is taken
+//! from the records themselves. Each member of a season (or of the all-records aggregate)
+//! is one plausible value of the season's mean:
+//! 1. every record is projected on its own with central constants and the pathway's central
+//!    warming ([`central`]), at every horizon year and every fifth year in between;
+//! 2. the member resamples the season's station-days with replacement (a bootstrap of the
+//!    mean; consecutive days of a sensor series in blocks, [`units`]) and takes the
+//!    time-weighted mean of the resampled station-days;
+//! 3. to that mean it adds the effect of its own draws, propagated through the season's
+//!    representative record (the one nearest the mean): shifts of pK0, pK1, pK2, pKB, pKW,
+//!    pK*sp (aragonite, calcite) and a factor on total boron with the standard uncertainties
+//!    of Orr et al. (2018), Mar. Chem. 207:84–107 (`chem::ORR2018`); errors of the measured
+//!    pair divided by √(station-days) (the error of a mean of independent measurements), the
+//!    record re-solved from its measured pair with the member's constants; and the member's
+//!    multiple of the pathway's warming (0.70–1.41, [`crate::outlook::warming`]) through the
+//!    representative record's sensitivity to temperature (a central difference of ±0.5 °C).
+//!    This first-order propagation through one record is exact for the constants of that
+//!    record and close for the season (checked against direct solves in the tests).
 //!
-//! The member keeps these draws for every pathway, scenario and horizon year. The stream of
-//! a member is derived from (seed, season, member) only, never from thread scheduling, so the
-//! results do not depend on the number of threads; and because the pathway and scenario are
-//! not part of the key, members are paired across pathways and scenarios (common random
-//! numbers): differences between pathways or scenarios are not blurred by sampling noise.
+//! Annual values between the computed years are interpolated linearly for crossing years.
+//! A member's constants and warming are shared by every season and pathway (stream
+//! (seed, member)), its bootstrap draw by every pathway (stream (seed, season, member)):
+//! members are paired across pathways and scenarios (common random numbers) and the limiting
+//! season of a member is its lowest season mean in each year. Streams depend on nothing
+//! else, so results do not depend on the number of threads.
 //!
 //! Work is split into one task per (pathway, season); rayon runs the tasks in parallel and
 //! collects them in order.
 //!
-//! Files: [`settings`] (what the caller chooses, validated once), [`draws`] (one member's
-//! random draws and its state at sampling), [`prepare`] (groups, scenarios, anchors and the
-//! notes found before running), [`run`] (solving the members and summarising them per task),
-//! [`assemble`] (the typed [`super::Outlook`]), [`quantiles`] (order statistics).
+//! Files: [`settings`] (what the caller chooses, validated once), [`units`] (station-days
+//! and the bootstrap), [`central`] (every record projected on its own), [`draws`] (the
+//! constants' draws and a record re-solved with a member's draws), [`prepare`] (groups,
+//! scenarios, anchors, computed years and the notes found before running), [`run`] (the
+//! members and their summary per task), [`assemble`] (the typed [`super::Outlook`]: series,
+//! crossing years, chances and shares below), [`quantiles`] (order statistics).
 
 pub mod assemble;
+pub mod central;
 pub mod draws;
 pub mod prepare;
 pub mod quantiles;
 pub mod run;
 pub mod settings;
+pub mod units;
 
+#[cfg(test)]
+mod mean_tests;
 #[cfg(test)]
 mod tests;
 
 pub use draws::constants_perturbation;
 pub use quantiles::{five_quantiles, quantile_sorted};
-pub use run::{member_states, run};
+pub use run::run;
 pub use settings::{
     DEFAULT_SEED, EnsembleSettings, MAX_MEMBERS, MeasurementUncertainty, NoProgress, Progress,
 };

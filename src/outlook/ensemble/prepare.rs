@@ -4,13 +4,13 @@
 
 use std::collections::BTreeSet;
 
-use crate::chem::{self, Constants, Input};
-
 use super::super::projection::RecordAnchor;
 use super::super::result::{GroupId, Note};
 use super::super::scenario::Offsets;
 use super::super::{OutlookError, ProjectionSettings, SiteInput};
+use super::central::{OMEGA_AR, TEMP, Values, present_values};
 use super::settings::{input_err, validate};
+use super::units::Units;
 use super::{AGGREGATE_LABEL, BASE_SCENARIO};
 
 /// Stream key of the aggregate group (season streams use the season index).
@@ -25,11 +25,19 @@ pub(super) struct Group {
     pub key: u64,
     /// Indices into `site.records`.
     pub records: Vec<usize>,
-    /// Mean Omega_ar of the records at sampling (central constants).
+    /// Time-weighted mean Omega_ar of the records at sampling (central constants).
     pub omega_b: f64,
     /// Mean temperature of the records, °C.
     pub temp_b: f64,
     pub sample_year_max: i32,
+    /// The group's station-days.
+    pub units: Units,
+    /// Weight of each record (by position in `records`) in the time-weighted mean.
+    pub weights: Vec<f64>,
+    /// The record (index into `site.records`) whose present Omega_ar lies nearest the
+    /// group's mean: the member's uncertainties of constants, measurements and warming are
+    /// propagated through it.
+    pub representative: usize,
 }
 
 impl Group {
@@ -68,6 +76,13 @@ pub(super) struct Prepared<'a> {
     /// xco2[pathway][year]
     pub xco2: Vec<Vec<f64>>,
     pub notes: Vec<Note>,
+    /// The years computed: every horizon year and every fifth year between the sampling and
+    /// the last horizon; annual values between them are interpolated linearly.
+    pub knots: Vec<i32>,
+    /// Position in `knots` of each horizon year.
+    pub horizon_knot: Vec<usize>,
+    /// Each record's values at sampling (central constants).
+    pub present: Vec<Values>,
 }
 
 impl<'a> Prepared<'a> {
@@ -94,9 +109,21 @@ impl<'a> Prepared<'a> {
                     .collect::<Result<Vec<_>, _>>()?,
             );
         }
-        let baseline = baseline_omega(site)?;
+        let present = present_values(site, anchors.first().map_or(&[][..], Vec::as_slice), s.mode)?;
         let mut notes = Vec::new();
-        let groups = groups(site, &baseline, &mut notes);
+        let groups = groups(site, &present, &mut notes);
+        let last_sample = site
+            .records
+            .iter()
+            .map(|r| r.sample_year)
+            .max()
+            .unwrap_or(0);
+        let knots = knot_years(&s.years, last_sample);
+        let horizon_knot = s
+            .years
+            .iter()
+            .map(|y| knots.iter().position(|k| k == y).unwrap_or(0))
+            .collect();
         notes.extend(relationship_notes(s, &groups));
         notes.extend(range_survey(site, s));
         Ok(Prepared {
@@ -107,15 +134,10 @@ impl<'a> Prepared<'a> {
             anchors,
             xco2,
             notes,
+            knots,
+            horizon_knot,
+            present,
         })
-    }
-
-    pub fn n_members(&self, g: &Group) -> usize {
-        if self.s.ensemble.members == 0 {
-            g.records.len()
-        } else {
-            self.s.ensemble.members
-        }
     }
 }
 
@@ -148,37 +170,31 @@ fn variants(site: &SiteInput, s: &ProjectionSettings) -> Result<Vec<Variant>, Ou
     Ok(variants)
 }
 
-/// Omega_ar of every record at its sampling conditions (central constants).
-fn baseline_omega(site: &SiteInput) -> Result<Vec<f64>, OutlookError> {
-    site.records
-        .iter()
-        .map(|r| {
-            let cond = r.conditions_at(r.temp_c);
-            let k = Constants::new(&cond, &site.methods);
-            chem::solve_pair(Input::Ta(r.ta), Input::Pco2(r.pco2), &k)
-                .map(|st| st.omega_ar)
-                .map_err(|e| {
-                    input_err(format!(
-                        "{}: the record's state at sampling cannot be solved from TA {} \
-                         umol/kg and pCO2 {} uatm: {e}",
-                        r.label, r.ta, r.pco2
-                    ))
-                })
-        })
-        .collect()
-}
-
 /// The seasons with records (in site order), then the all-records aggregate.
-fn groups(site: &SiteInput, baseline: &[f64], notes: &mut Vec<Note>) -> Vec<Group> {
+fn groups(site: &SiteInput, present: &[Values], notes: &mut Vec<Note>) -> Vec<Group> {
     let make_group = |id: GroupId, label: String, key: u64, records: Vec<usize>| {
-        let n = records.len() as f64;
-        let omega_b = records.iter().filter_map(|&i| baseline.get(i)).sum::<f64>() / n;
-        let temp_b = records
+        let units = Units::of(&site.records, &records);
+        let weights = units.record_weights(records.len());
+        let mean_of = |i: usize| {
+            records
+                .iter()
+                .zip(&weights)
+                .map(|(&r, w)| w * present.get(r).map_or(f64::NAN, |v| v[i]))
+                .sum::<f64>()
+        };
+        let (omega_b, temp_b) = (mean_of(OMEGA_AR), mean_of(TEMP));
+        let representative = records
             .iter()
-            .filter_map(|&i| site.records.get(i))
-            .map(|r| r.temp_c)
-            .sum::<f64>()
-            / n;
+            .copied()
+            .min_by(|&a, &b| {
+                let d = |r: usize| {
+                    present
+                        .get(r)
+                        .map_or(f64::INFINITY, |v| (v[OMEGA_AR] - omega_b).abs())
+                };
+                d(a).total_cmp(&d(b))
+            })
+            .unwrap_or(0);
         let sample_year_max = records
             .iter()
             .filter_map(|&i| site.records.get(i))
@@ -193,6 +209,9 @@ fn groups(site: &SiteInput, baseline: &[f64], notes: &mut Vec<Note>) -> Vec<Grou
             omega_b,
             temp_b,
             sample_year_max,
+            units,
+            weights,
+            representative,
         }
     };
     let mut groups = Vec::new();
@@ -229,6 +248,24 @@ fn groups(site: &SiteInput, baseline: &[f64], notes: &mut Vec<Note>) -> Vec<Grou
         (0..site.records.len()).collect(),
     ));
     groups
+}
+
+/// The years to compute: every horizon year, and every fifth year after `last_sample` up to
+/// the last horizon year (so that annual values between them, for crossing years, are
+/// interpolated over at most five years).
+pub(super) fn knot_years(years: &[i32], last_sample: i32) -> Vec<i32> {
+    let Some(&end) = years.last() else {
+        return Vec::new();
+    };
+    let mut k: Vec<i32> = years.to_vec();
+    let mut y = (last_sample.div_euclid(5) + 1) * 5;
+    while y < end {
+        k.push(y);
+        y += 5;
+    }
+    k.sort_unstable();
+    k.dedup();
+    k
 }
 
 /// Relationships that cannot be scaled at a group's baseline, or whose fitted range the

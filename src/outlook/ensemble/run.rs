@@ -1,61 +1,29 @@
-//! Solving the members: one task per (pathway, group), each member under every horizon year
-//! and variant, summarised into quantiles and threshold shares per year.
+//! Solving the members: one task per (pathway, group). A member is one plausible value of
+//! the group's time-weighted mean state in every computed year: the bootstrap re-weighting of
+//! the group's station-days (each record projected on its own, [`super::central`]) plus the
+//! member's draws of the constants, of the measurement errors of the mean and of the warming,
+//! propagated through the group's representative record.
 
 use rayon::prelude::*;
 
-use crate::chem::{CarbonateState, Constants};
+use crate::chem::{Constants, Perturbation};
 
-use super::super::calcification::Relationship;
 use super::super::projection::{YearConditions, solve_projected};
 use super::super::result::{QuantilePoint, Quantiles, Quantity};
-use super::super::thresholds::fraction_below;
+use super::super::rng::Xoshiro256;
+use super::super::warming::warming_factor;
 use super::super::{OutlookError, ProjectionSettings, SiteInput};
 use super::assemble::assemble;
-use super::draws::{MemberDraw, draw, member_start};
+use super::central::{Central, NQ, OMEGA_AR, TEMP, Values, project_all, values_of};
+use super::draws::{MemberDraw, constants_perturbation, member_start};
 use super::prepare::{Group, Prepared};
 use super::quantiles::five_quantiles;
 use super::settings::{Progress, input_err};
 
-/// A member's own present-day state: its record with its draws (measurement errors and
-/// constants) at the sampling conditions, projected to the sampling year. Changes are taken
-/// against it, so they are paired member by member.
-#[derive(Clone, Copy, Debug)]
-pub(super) struct Present {
-    pub omega_ar: f64,
-    pub ph_t: f64,
-    pub temp_c: f64,
-}
+/// Stream key of the draws a member shares across groups (constants and warming).
+const SHARED_KEY: u64 = u64::MAX - 1;
 
-/// What a member gives in one year: its solved state and temperature, and its present-day
-/// state (`None` when that could not be solved).
-#[derive(Clone, Copy, Debug)]
-struct Sample {
-    state: CarbonateState,
-    temp_c: f64,
-    present: Option<Present>,
-}
-
-impl Sample {
-    /// The value of a carbonate-state quantity (NaN for a calcification quantity).
-    fn state_value(&self, q: Quantity) -> f64 {
-        let st = &self.state;
-        match q {
-            Quantity::OmegaAr => st.omega_ar,
-            Quantity::OmegaCa => st.omega_ca,
-            Quantity::PhT => st.ph_t,
-            Quantity::Pco2 => st.pco2,
-            Quantity::Dic => st.dic,
-            Quantity::Ta => st.ta,
-            Quantity::Co3 => st.co3,
-            Quantity::TempC => self.temp_c,
-            Quantity::OmegaArChange => self.present.map_or(f64::NAN, |p| st.omega_ar - p.omega_ar),
-            Quantity::PhTChange => self.present.map_or(f64::NAN, |p| st.ph_t - p.ph_t),
-            Quantity::CalcChangePct(_) | Quantity::NetCalc(_) => f64::NAN,
-        }
-    }
-}
-
-/// Percent of members below one habitat threshold, per horizon year.
+/// Percent below one habitat threshold, per horizon year.
 #[derive(Clone, Debug)]
 pub(super) struct ThresholdShare {
     pub class: String,
@@ -67,8 +35,14 @@ pub(super) struct ThresholdShare {
 pub(super) struct VariantSummary {
     /// One series per quantity, in output order.
     pub series: Vec<(Quantity, Vec<QuantilePoint>)>,
-    /// Per habitat threshold, high to low.
+    /// Uncertainty: percent of members whose mean lies below each threshold, high to low.
     pub below: Vec<ThresholdShare>,
+    /// Variability: time-weighted percent of records below each threshold, high to low.
+    pub time_below: Vec<ThresholdShare>,
+    /// Each member's mean Omega_ar at sampling.
+    pub omega_present: Vec<f64>,
+    /// Each member's mean Omega_ar at the computed years, `[member * knots + k]`.
+    pub omega_knots: Vec<f64>,
 }
 
 impl VariantSummary {
@@ -88,221 +62,325 @@ pub(super) struct TaskOut {
     pub first_failure: Option<String>,
 }
 
-/// Central constants of a group's records, computed once per task.
-struct Precomputed {
-    /// `[local record][year]` flattened.
-    years: Vec<YearConditions>,
-    /// `[local record]`: constants at the sampling conditions.
-    at_sampling: Vec<Constants>,
+/// The draws of member `m` that every group shares: constants and the warming factor.
+struct Shared {
+    perturbation: Option<Perturbation>,
+    warming: f64,
+}
+
+fn shared_draw(prep: &Prepared<'_>, m: usize) -> Shared {
+    let e = &prep.s.ensemble;
+    if e.members == 0 {
+        return Shared {
+            perturbation: None,
+            warming: 1.0,
+        };
+    }
+    let mut rng = Xoshiro256::for_stream(&[e.seed, SHARED_KEY, m as u64]);
+    let z: [f64; 8] = std::array::from_fn(|_| rng.normal());
+    Shared {
+        perturbation: e.constants.then(|| constants_perturbation(z)),
+        warming: if prep.s.warming {
+            warming_factor(m, e.members)
+        } else {
+            1.0
+        },
+    }
+}
+
+/// The group's tables for one pathway: station-day means of the central projections and
+/// the representative record's central state and temperature sensitivity.
+struct GroupTables {
+    /// `[variant][unit * knots + k]`
+    unit_at: Vec<Vec<Values>>,
+    /// `[unit]`
+    unit_present: Vec<Values>,
+    /// Representative record: central conditions per knot (`None`: not solvable).
+    rep_cond: Vec<Option<YearConditions>>,
+    /// `[variant][k]`: its central values and their change per °C of warming.
+    rep_central: Vec<Vec<Values>>,
+    rep_per_degree: Vec<Vec<Values>>,
+    /// Its central warming per knot, °C.
+    rep_warming: Vec<f64>,
+    rep_k_sample: Constants,
+}
+
+/// Mean of `vals` over units with multiplicities `counts`, quantity by quantity over the
+/// finite values.
+fn weighted_mean<'v>(counts: &[u32], vals: impl Fn(usize) -> Option<&'v Values>) -> Values {
+    let mut sum = [0.0; NQ];
+    let mut n = [0.0; NQ];
+    for (u, &c) in counts.iter().enumerate() {
+        if c == 0 {
+            continue;
+        }
+        let Some(v) = vals(u) else { continue };
+        for i in 0..NQ {
+            if v[i].is_finite() {
+                sum[i] += f64::from(c) * v[i];
+                n[i] += f64::from(c);
+            }
+        }
+    }
+    std::array::from_fn(|i| if n[i] > 0.0 { sum[i] / n[i] } else { f64::NAN })
 }
 
 impl Prepared<'_> {
-    /// Solves one member under pathway `p` for every horizon year and variant, calling
-    /// `sink(year index, variant index, result, temperature, present-day state)`. `cached`
-    /// holds the central year conditions of the member's record (one per year) and its
-    /// constants at sampling when precomputed.
-    fn eval_member(
+    fn tables(&self, p: usize, g: &Group, central: &Central) -> Option<GroupTables> {
+        let (site, s) = (self.site, self.s);
+        let nk = self.knots.len();
+        let unit_mean = |unit: &[usize], f: &dyn Fn(usize) -> Option<Values>| {
+            let vals: Vec<Values> = unit
+                .iter()
+                .filter_map(|&l| g.records.get(l).and_then(|&r| f(r)))
+                .collect();
+            let counts = vec![1u32; vals.len()];
+            weighted_mean(&counts, |i| vals.get(i))
+        };
+        let unit_at = (0..self.variants.len())
+            .map(|v| {
+                let mut out = Vec::with_capacity(g.units.len() * nk);
+                for unit in &g.units.records {
+                    for k in 0..nk {
+                        out.push(unit_mean(unit, &|r| central.get(v, r, k).copied()));
+                    }
+                }
+                out
+            })
+            .collect();
+        let unit_present = g
+            .units
+            .records
+            .iter()
+            .map(|unit| unit_mean(unit, &|r| self.present.get(r).copied()))
+            .collect();
+        let spec = s.pathways.get(p)?;
+        let rep = site.records.get(g.representative)?;
+        let anchor = self.anchors.get(p)?.get(g.representative)?;
+        let change = |year: i32| {
+            if s.warming {
+                spec.warming.change_between(rep.sample_year, year)
+            } else {
+                0.0
+            }
+        };
+        let cond = |year: i32, dt: f64| {
+            YearConditions::with_change(
+                rep,
+                &spec.pathway,
+                &site.observed,
+                change(year) + dt,
+                &site.methods,
+                year,
+            )
+            .ok()
+        };
+        let solve_at = |yc: &YearConditions, v: usize, year: i32| {
+            let off = self.variants.get(v)?.offsets_for(rep.season, year);
+            let pco2 = anchor.project_pco2(rep.pco2, yc.pco2_air, s.mode);
+            solve_projected(rep.ta, pco2, off, &yc.constants)
+                .ok()
+                .map(|st| values_of(&st, yc.temp_c))
+        };
+        let rep_cond: Vec<Option<YearConditions>> =
+            self.knots.iter().map(|&y| cond(y, 0.0)).collect();
+        let mut rep_central = Vec::with_capacity(self.variants.len());
+        let mut rep_per_degree = Vec::with_capacity(self.variants.len());
+        for v in 0..self.variants.len() {
+            let mut c = Vec::with_capacity(nk);
+            let mut d = Vec::with_capacity(nk);
+            for (&year, yc) in self.knots.iter().zip(&rep_cond) {
+                let nan = [f64::NAN; NQ];
+                c.push(
+                    yc.as_ref()
+                        .and_then(|yc| solve_at(yc, v, year))
+                        .unwrap_or(nan),
+                );
+                // Central difference over ±0.5 °C.
+                let hi = cond(year, 0.5).and_then(|yc| solve_at(&yc, v, year));
+                let lo = cond(year, -0.5).and_then(|yc| solve_at(&yc, v, year));
+                d.push(match (hi, lo) {
+                    (Some(h), Some(l)) => std::array::from_fn(|i| h[i] - l[i]),
+                    _ => [0.0; NQ],
+                });
+            }
+            rep_central.push(c);
+            rep_per_degree.push(d);
+        }
+        Some(GroupTables {
+            unit_at,
+            unit_present,
+            rep_cond,
+            rep_central,
+            rep_per_degree,
+            rep_warming: self.knots.iter().map(|&y| change(y)).collect(),
+            rep_k_sample: Constants::new(&rep.conditions_at(rep.temp_c), &site.methods),
+        })
+    }
+
+    /// The member's corrections through the representative record: its values with the
+    /// member's constants, measurement errors of the mean (each error divided by √units) and
+    /// warming, minus its central values; `[variant][k]` and at sampling. `None` when the
+    /// record cannot be re-solved with the member's draws.
+    fn corrections(
         &self,
         p: usize,
-        draw: &MemberDraw,
-        cached: Option<(&[YearConditions], &Constants)>,
-        sink: &mut dyn FnMut(usize, usize, Result<CarbonateState, String>, f64, Option<Present>),
-    ) {
-        let site = self.site;
-        let s = self.s;
-        let Some(rec) = site.records.get(draw.record) else {
-            return;
+        g: &Group,
+        t: &GroupTables,
+        shared: &Shared,
+        z: (f64, f64),
+    ) -> Result<(Vec<Vec<Values>>, Values), String> {
+        let (site, s) = (self.site, self.s);
+        let nv = self.variants.len();
+        let nk = self.knots.len();
+        let zero = [0.0; NQ];
+        let no_draws = shared.perturbation.is_none() && z == (0.0, 0.0);
+        if s.ensemble.members == 0 || (no_draws && shared.warming == 1.0) {
+            return Ok((vec![vec![zero; nk]; nv], zero));
+        }
+        let (Some(rep), Some(anchor)) = (
+            site.records.get(g.representative),
+            self.anchors.get(p).and_then(|a| a.get(g.representative)),
+        ) else {
+            return Err("no representative record".to_string());
         };
-        let Some(spec) = s.pathways.get(p) else {
-            return;
+        let scale = 1.0 / (g.units.len().max(1) as f64).sqrt();
+        let draw = MemberDraw {
+            perturbation: shared.perturbation,
+            z_a: z.0 * scale,
+            z_b: z.1 * scale,
         };
-        let Some(anchor) = self.anchors.get(p).and_then(|a| a.get(draw.record)) else {
-            return;
+        let (ta, pco2) = member_start(
+            &s.ensemble,
+            &site.methods,
+            rep,
+            &draw,
+            Some(&t.rep_k_sample),
+        )?;
+        let k_sample = match &shared.perturbation {
+            Some(pt) => t.rep_k_sample.perturbed(pt),
+            None => t.rep_k_sample,
         };
-        let start = member_start(&s.ensemble, &site.methods, rec, draw, cached.map(|c| c.1));
-        let (ta, pco2_rec) = match start {
-            Ok(v) => v,
-            Err(msg) => {
-                for yi in 0..s.years.len() {
-                    for vi in 0..self.variants.len() {
-                        sink(yi, vi, Err(msg.clone()), f64::NAN, None);
-                    }
-                }
-                return;
-            }
-        };
-        let present = self.present(rec, anchor, draw, ta, pco2_rec, cached.map(|c| c.1));
-        let cached = cached.map(|c| c.0);
-        let warming = s.warming.then_some(&spec.warming);
-        for (yi, &year) in s.years.iter().enumerate() {
-            let fresh;
-            let yc: &YearConditions = match cached.and_then(|c| c.get(yi)) {
-                Some(c) => c,
-                None => {
-                    match YearConditions::new(
-                        rec,
-                        &spec.pathway,
-                        &site.observed,
-                        warming,
-                        &site.methods,
-                        year,
-                    ) {
-                        Ok(c) => {
-                            fresh = c;
-                            &fresh
-                        }
-                        Err(e) => {
-                            for vi in 0..self.variants.len() {
-                                sink(yi, vi, Err(e.to_string()), f64::NAN, present);
-                            }
-                            continue;
-                        }
-                    }
-                }
+        let pco2_now = anchor.project_pco2(pco2, anchor.pco2_air_sample, s.mode);
+        let now = solve_projected(ta, pco2_now, None, &k_sample)
+            .map(|st| values_of(&st, rep.temp_c))
+            .map_err(|e| format!("present state with this member's draws: {e}"))?;
+        let rep_now = self
+            .present
+            .get(g.representative)
+            .copied()
+            .unwrap_or([f64::NAN; NQ]);
+        let present: Values = std::array::from_fn(|i| now[i] - rep_now[i]);
+        let mut out = vec![Vec::with_capacity(nk); nv];
+        for (k, (&year, yc)) in self.knots.iter().zip(&t.rep_cond).enumerate() {
+            let Some(yc) = yc else {
+                return Err(format!("conditions in {year}"));
             };
-            let perturbed;
-            let k: &Constants = match &draw.perturbation {
-                Some(pt) => {
-                    perturbed = yc.constants.perturbed(pt);
-                    &perturbed
-                }
-                None => &yc.constants,
+            let km = match &shared.perturbation {
+                Some(pt) => yc.constants.perturbed(pt),
+                None => yc.constants,
             };
-            let pco2_sea = anchor.project_pco2(pco2_rec, yc.pco2_air, s.mode);
-            for (vi, v) in self.variants.iter().enumerate() {
-                let res = solve_projected(ta, pco2_sea, v.offsets_for(rec.season, year), k);
-                sink(yi, vi, res, yc.temp_c, present);
+            let pco2_sea = anchor.project_pco2(pco2, yc.pco2_air, s.mode);
+            let dt = (shared.warming - 1.0) * t.rep_warming.get(k).copied().unwrap_or(0.0);
+            for (v, row) in out.iter_mut().enumerate() {
+                let off = self
+                    .variants
+                    .get(v)
+                    .and_then(|x| x.offsets_for(rep.season, year));
+                let st = solve_projected(ta, pco2_sea, off, &km)
+                    .map_err(|e| format!("{year} with this member's draws: {e}"))?;
+                let vals = values_of(&st, yc.temp_c);
+                let c = t.rep_central.get(v).and_then(|c| c.get(k)).unwrap_or(&zero);
+                let d = t
+                    .rep_per_degree
+                    .get(v)
+                    .and_then(|c| c.get(k))
+                    .unwrap_or(&zero);
+                row.push(std::array::from_fn(|i| vals[i] - c[i] + dt * d[i]));
             }
         }
-    }
-
-    /// The member's present-day state: its TA and seawater pCO2 at sampling projected to the
-    /// sampling year (the same arithmetic as any horizon year) and solved with its constants
-    /// at the sampling conditions (`k_sample`: central constants there, computed when `None`).
-    fn present(
-        &self,
-        rec: &super::super::ProjectionRecord,
-        anchor: &super::super::projection::RecordAnchor,
-        draw: &MemberDraw,
-        ta: f64,
-        pco2_rec: f64,
-        k_sample: Option<&Constants>,
-    ) -> Option<Present> {
-        let k = super::draws::member_constants(
-            k_sample,
-            rec,
-            &self.site.methods,
-            draw.perturbation.as_ref(),
-        );
-        let pco2_sea = anchor.project_pco2(pco2_rec, anchor.pco2_air_sample, self.s.mode);
-        let st = solve_projected(ta, pco2_sea, None, &k).ok()?;
-        Some(Present {
-            omega_ar: st.omega_ar,
-            ph_t: st.ph_t,
-            temp_c: rec.temp_c,
-        })
-    }
-
-    /// Central year conditions of every record of `g` under pathway `p`, and the records'
-    /// central constants at sampling; `None` when the group has more records than members
-    /// (computing per member is then cheaper).
-    fn precompute(&self, p: usize, g: &Group) -> Option<Precomputed> {
-        if g.records.len() > self.n_members(g) {
-            return None;
-        }
-        let spec = self.s.pathways.get(p)?;
-        let warming = self.s.warming.then_some(&spec.warming);
-        let mut out = Vec::with_capacity(g.records.len() * self.s.years.len());
-        let mut at_sampling = Vec::with_capacity(g.records.len());
-        for &ri in &g.records {
-            let rec = self.site.records.get(ri)?;
-            at_sampling.push(Constants::new(
-                &rec.conditions_at(rec.temp_c),
-                &self.site.methods,
-            ));
-            for &year in &self.s.years {
-                let c = YearConditions::new(
-                    rec,
-                    &spec.pathway,
-                    &self.site.observed,
-                    warming,
-                    &self.site.methods,
-                    year,
-                )
-                .ok()?;
-                out.push(c);
-            }
-        }
-        Some(Precomputed {
-            years: out,
-            at_sampling,
-        })
+        Ok((out, present))
     }
 }
 
+/// What the members of one variant gave: present and per-knot mean values.
+struct MemberValues {
+    present: Vec<Values>,
+    /// `[member * knots + k]`
+    at: Vec<Values>,
+}
+
 /// Solves every member of group `g` under pathway `p` and summarises them.
-fn run_task(prep: &Prepared<'_>, p: usize, g: &Group, progress: &dyn Progress) -> TaskOut {
+fn run_task(
+    prep: &Prepared<'_>,
+    p: usize,
+    g: &Group,
+    central: &Central,
+    progress: &dyn Progress,
+) -> TaskOut {
     let s = prep.s;
-    let ny = s.years.len();
-    let members = prep.n_members(g);
-    let cache = prep.precompute(p, g);
-    // samples[variant][year][member]
-    let mut samples: Vec<Vec<Vec<Option<Sample>>>> =
-        vec![vec![vec![None; members]; ny]; prep.variants.len()];
+    let nk = prep.knots.len();
+    let nv = prep.variants.len();
+    let members = s.ensemble.members.max(1);
+    let mut vals: Vec<MemberValues> = (0..nv)
+        .map(|_| MemberValues {
+            present: Vec::with_capacity(members),
+            at: Vec::with_capacity(members * nk),
+        })
+        .collect();
     let mut failures = 0usize;
     let mut first_failure: Option<String> = None;
-
+    let Some(t) = prep.tables(p, g, central) else {
+        return TaskOut {
+            variants: Vec::new(),
+            failures: 1,
+            first_failure: Some(format!("{}: the representative record", g.label)),
+        };
+    };
+    let mut counts = Vec::new();
     for m in 0..members {
-        let d = draw(&s.ensemble, &g.records, g.key, m);
-        let l = d.local;
-        let cached = cache
-            .as_ref()
-            .and_then(|c| Some((c.years.get(l * ny..(l + 1) * ny)?, c.at_sampling.get(l)?)));
-        let label = prep
-            .site
-            .records
-            .get(d.record)
-            .map(|r| r.label.as_str())
-            .unwrap_or("");
-        prep.eval_member(
-            p,
-            &d,
-            cached,
-            &mut |yi, vi, res, temp_c, present| match res {
-                Ok(state) => {
-                    if let Some(slot) = samples
-                        .get_mut(vi)
-                        .and_then(|v| v.get_mut(yi))
-                        .and_then(|y| y.get_mut(m))
-                    {
-                        *slot = Some(Sample {
-                            state,
-                            temp_c,
-                            present,
-                        });
-                    }
+        let mut rng = Xoshiro256::for_stream(&[s.ensemble.seed, g.key, m as u64]);
+        if s.ensemble.members == 0 {
+            counts.clear();
+            counts.resize(g.units.len(), 1);
+        } else {
+            g.units.draw_counts(&mut rng, &mut counts);
+        }
+        let z = if s.ensemble.members == 0 {
+            (0.0, 0.0)
+        } else {
+            (rng.normal(), rng.normal())
+        };
+        let shared = shared_draw(prep, m);
+        let nan = [f64::NAN; NQ];
+        let (corr, corr_now) = match prep.corrections(p, g, &t, &shared, z) {
+            Ok(c) => c,
+            Err(msg) => {
+                failures += nk;
+                if first_failure.is_none() {
+                    first_failure = Some(format!("{} member {m}: {msg}", g.label));
                 }
-                Err(msg) => {
-                    failures += 1;
-                    if first_failure.is_none() {
-                        first_failure = Some(format!(
-                            "{label}: {} {}: {msg}",
-                            s.pathways
-                                .get(p)
-                                .map(|x| x.pathway.name.as_str())
-                                .unwrap_or(""),
-                            s.years.get(yi).copied().unwrap_or(0)
-                        ));
-                    }
-                }
-            },
-        );
-        progress.advance(ny as u64);
+                (vec![vec![nan; nk]; nv], nan)
+            }
+        };
+        let now = weighted_mean(&counts, |u| t.unit_present.get(u));
+        for (v, out) in vals.iter_mut().enumerate() {
+            out.present
+                .push(std::array::from_fn(|i| now[i] + corr_now[i]));
+            for k in 0..nk {
+                let mean = weighted_mean(&counts, |u| {
+                    t.unit_at.get(v).and_then(|a| a.get(u * nk + k))
+                });
+                let c = corr.get(v).and_then(|c| c.get(k)).unwrap_or(&nan);
+                out.at.push(std::array::from_fn(|i| mean[i] + c[i]));
+            }
+        }
+        progress.advance(nk as u64);
     }
-
-    let variants = samples
+    let variants = vals
         .iter()
-        .map(|per_year| summarise(prep, per_year))
+        .enumerate()
+        .map(|(v, mv)| summarise(prep, g, central, v, mv))
         .collect();
     TaskOut {
         variants,
@@ -311,71 +389,103 @@ fn run_task(prep: &Prepared<'_>, p: usize, g: &Group, progress: &dyn Progress) -
     }
 }
 
-/// Quantiles of every quantity and the share below each threshold, per year, from the
-/// members' samples `per_year[year][member]`.
-fn summarise(prep: &Prepared<'_>, per_year: &[Vec<Option<Sample>>]) -> VariantSummary {
+/// Quantiles of every quantity, the shares below each threshold at the horizon years, and
+/// the members' Omega_ar trajectories.
+fn summarise(
+    prep: &Prepared<'_>,
+    g: &Group,
+    central: &Central,
+    v: usize,
+    mv: &MemberValues,
+) -> VariantSummary {
     let s = prep.s;
-    let rels = &s.calcification.relationships;
-    let rate = s.calcification.site_rate.as_ref().map(|r| r.kg_m2_yr);
+    let nk = prep.knots.len();
+    let n = mv.present.len();
+    let at = |m: usize, k: usize| mv.at.get(m * nk + k);
     let mut scratch = Vec::new();
-    let mut quantiles_of = |values: &mut dyn Iterator<Item = f64>| {
+    let mut point = |year: i32, values: &mut dyn Iterator<Item = f64>, outside: Option<f64>| {
         scratch.clear();
         scratch.extend(values);
         let q = five_quantiles(&mut scratch);
-        (Quantiles::from_levels(q), scratch.len())
+        QuantilePoint {
+            year,
+            q: Quantiles::from_levels(q),
+            members: scratch.len(),
+            outside_fit_pct: outside,
+        }
     };
+    let horizons: Vec<(i32, usize)> = s
+        .years
+        .iter()
+        .copied()
+        .zip(prep.horizon_knot.iter().copied())
+        .collect();
     let mut series: Vec<(Quantity, Vec<QuantilePoint>)> = Vec::new();
-    for q in Quantity::STATE.into_iter().chain(Quantity::PAIRED_CHANGES) {
-        let points = per_year
+    for (i, q) in Quantity::STATE.into_iter().enumerate() {
+        let pts = horizons
             .iter()
-            .zip(&s.years)
-            .map(|(ms, &year)| {
-                let (qs, n) = quantiles_of(
-                    &mut ms
-                        .iter()
-                        .map(|x| x.as_ref().map_or(f64::NAN, |x| x.state_value(q))),
-                );
-                QuantilePoint {
-                    year,
-                    q: qs,
-                    members: n,
-                    outside_fit_pct: None,
-                }
+            .map(|&(y, k)| {
+                point(
+                    y,
+                    &mut (0..n).map(|m| at(m, k).map_or(f64::NAN, |x| x[i])),
+                    None,
+                )
             })
             .collect();
-        series.push((q, points));
+        series.push((q, pts));
     }
-    for rel in rels {
-        // Paired: the member's state in the year against its own present-day state.
-        let factor = |x: &Option<Sample>| {
-            let x = x.as_ref()?;
-            let p = x.present?;
-            rel.relative(x.state.omega_ar, x.temp_c, p.omega_ar, p.temp_c)
+    for (q, i) in [
+        (Quantity::OmegaArChange, OMEGA_AR),
+        (Quantity::PhTChange, 2),
+    ] {
+        let pts = horizons
+            .iter()
+            .map(|&(y, k)| {
+                point(
+                    y,
+                    &mut (0..n).map(|m| match (at(m, k), mv.present.get(m)) {
+                        (Some(x), Some(p)) => x[i] - p[i],
+                        _ => f64::NAN,
+                    }),
+                    None,
+                )
+            })
+            .collect();
+        series.push((q, pts));
+    }
+    let rate = s.calcification.site_rate.as_ref().map(|r| r.kg_m2_yr);
+    for rel in &s.calcification.relationships {
+        let factor = |m: usize, k: usize| {
+            let (x, p) = (at(m, k)?, mv.present.get(m)?);
+            rel.relative(x[OMEGA_AR], x[TEMP], p[OMEGA_AR], p[TEMP])
         };
-        let mut change = Vec::with_capacity(per_year.len());
-        let mut net = Vec::with_capacity(per_year.len());
-        for (ms, &year) in per_year.iter().zip(&s.years) {
-            let outside = outside_fit_pct(rel, ms);
-            let (qc, nc) = quantiles_of(
-                &mut ms
-                    .iter()
-                    .map(|x| factor(x).map_or(f64::NAN, |f| (f - 1.0) * 100.0)),
-            );
-            change.push(QuantilePoint {
-                year,
-                q: qc,
-                members: nc,
-                outside_fit_pct: Some(outside),
-            });
+        let mut change = Vec::with_capacity(horizons.len());
+        let mut net = Vec::with_capacity(horizons.len());
+        for &(y, k) in &horizons {
+            let solved = (0..n)
+                .filter_map(|m| at(m, k))
+                .filter(|x| x[OMEGA_AR].is_finite());
+            let (mut all, mut outside) = (0usize, 0usize);
+            for x in solved {
+                all += 1;
+                outside += usize::from(!rel.in_range(x[OMEGA_AR], x[TEMP]));
+            }
+            let out_pct = if all == 0 {
+                f64::NAN
+            } else {
+                100.0 * outside as f64 / all as f64
+            };
+            change.push(point(
+                y,
+                &mut (0..n).map(|m| factor(m, k).map_or(f64::NAN, |f| (f - 1.0) * 100.0)),
+                Some(out_pct),
+            ));
             if let Some(rate) = rate {
-                let (qn, nn) =
-                    quantiles_of(&mut ms.iter().map(|x| factor(x).map_or(f64::NAN, |f| rate * f)));
-                net.push(QuantilePoint {
-                    year,
-                    q: qn,
-                    members: nn,
-                    outside_fit_pct: Some(outside),
-                });
+                net.push(point(
+                    y,
+                    &mut (0..n).map(|m| factor(m, k).map_or(f64::NAN, |f| rate * f)),
+                    Some(out_pct),
+                ));
             }
         }
         let [qc, qn] = Quantity::of_relationship(rel.rel_id());
@@ -384,45 +494,50 @@ fn summarise(prep: &Prepared<'_>, per_year: &[Vec<Option<Sample>>]) -> VariantSu
             series.push((qn, net));
         }
     }
-    let below = s
-        .classes
-        .thresholds()
-        .into_iter()
-        .map(|(class, t)| ThresholdShare {
-            class,
-            threshold: t,
-            pct_below: per_year
-                .iter()
-                .map(|ms| {
-                    let omega: Vec<f64> = ms
-                        .iter()
-                        .map(|x| x.as_ref().map_or(f64::NAN, |x| x.state.omega_ar))
-                        .collect();
-                    100.0 * fraction_below(&omega, t)
-                })
-                .collect(),
-        })
-        .collect();
-    VariantSummary { series, below }
+    let thresholds = s.classes.thresholds();
+    let shares = |pct: &dyn Fn(f64, usize) -> f64| -> Vec<ThresholdShare> {
+        thresholds
+            .iter()
+            .map(|(class, t)| ThresholdShare {
+                class: class.clone(),
+                threshold: *t,
+                pct_below: horizons.iter().map(|&(_, k)| pct(*t, k)).collect(),
+            })
+            .collect()
+    };
+    let below = shares(&|t, k| {
+        let om: Vec<f64> = (0..n)
+            .map(|m| at(m, k).map_or(f64::NAN, |x| x[OMEGA_AR]))
+            .collect();
+        100.0 * super::super::thresholds::fraction_below(&om, t)
+    });
+    let time_below =
+        shares(&|t, k| time_share_below(g, t, |r| central.get(v, r, k).map(|x| x[OMEGA_AR])));
+    VariantSummary {
+        series,
+        below,
+        time_below,
+        omega_present: mv.present.iter().map(|x| x[OMEGA_AR]).collect(),
+        omega_knots: mv.at.iter().map(|x| x[OMEGA_AR]).collect(),
+    }
 }
 
-/// Percent of the solved members (finite Omega_ar) outside the relationship's fitted range
-/// (NaN when none was solved).
-fn outside_fit_pct(rel: &Relationship, ms: &[Option<Sample>]) -> f64 {
-    let solved = ms
-        .iter()
-        .flatten()
-        .filter(|x| x.state.omega_ar.is_finite())
-        .count();
-    let outside = ms
-        .iter()
-        .flatten()
-        .filter(|x| !rel.in_range(x.state.omega_ar, x.temp_c))
-        .count();
-    if solved == 0 {
-        f64::NAN
+/// Time-weighted percent of the group's records with Omega_ar below `t` (records without a
+/// value left out and the weights renormalised).
+pub(super) fn time_share_below(g: &Group, t: f64, omega: impl Fn(usize) -> Option<f64>) -> f64 {
+    let (mut below, mut all) = (0.0, 0.0);
+    for (&r, &w) in g.records.iter().zip(&g.weights) {
+        if let Some(x) = omega(r).filter(|x| x.is_finite()) {
+            all += w;
+            if x < t {
+                below += w;
+            }
+        }
+    }
+    if all > 0.0 {
+        100.0 * below / all
     } else {
-        100.0 * outside as f64 / solved as f64
+        f64::NAN
     }
 }
 
@@ -433,22 +548,32 @@ pub fn run(
     progress: &dyn Progress,
 ) -> Result<super::super::Outlook, OutlookError> {
     let prep = Prepared::new(site, s)?;
-    // Task order (pathway-major, then group) is the order of `outs`.
-    let tasks: Vec<(usize, &Group)> = (0..s.pathways.len())
-        .flat_map(|p| prep.groups.iter().map(move |g| (p, g)))
-        .collect();
-    let total: u64 = tasks
-        .iter()
-        .map(|&(_, g)| (prep.n_members(g) * s.years.len()) as u64)
-        .sum();
+    let nk = prep.knots.len() as u64;
+    let total: u64 =
+        (s.pathways.len() * prep.groups.len()) as u64 * s.ensemble.members.max(1) as u64 * nk;
     progress.start(total);
-    let work = || -> Vec<TaskOut> {
-        tasks
+    let work = || -> (Vec<Central>, Vec<TaskOut>) {
+        let centrals: Vec<Central> = (0..s.pathways.len())
+            .map(|p| project_all(&prep, p))
+            .collect();
+        // Task order (pathway-major, then group) is the order of `outs`.
+        let tasks: Vec<(usize, &Group)> = (0..s.pathways.len())
+            .flat_map(|p| prep.groups.iter().map(move |g| (p, g)))
+            .collect();
+        let outs = tasks
             .par_iter()
-            .map(|&(p, g)| run_task(&prep, p, g, progress))
-            .collect()
+            .map(|&(p, g)| match centrals.get(p) {
+                Some(c) => run_task(&prep, p, g, c, progress),
+                None => TaskOut {
+                    variants: Vec::new(),
+                    failures: 0,
+                    first_failure: None,
+                },
+            })
+            .collect();
+        (centrals, outs)
     };
-    let outs = match s.ensemble.threads {
+    let (centrals, outs) = match s.ensemble.threads {
         Some(n) => rayon::ThreadPoolBuilder::new()
             .num_threads(n)
             .build()
@@ -456,38 +581,5 @@ pub fn run(
             .install(work),
         None => work(),
     };
-    Ok(assemble(&prep, &outs))
-}
-
-/// The solved states of one ensemble member, `[scenario][year]` (scenario 0 is the base
-/// case), for checks and figures. `group` is a season label or the aggregate label.
-pub fn member_states(
-    site: &SiteInput,
-    s: &ProjectionSettings,
-    pathway: usize,
-    group: &str,
-    member: usize,
-) -> Result<Vec<Vec<Result<CarbonateState, String>>>, OutlookError> {
-    let prep = Prepared::new(site, s)?;
-    let g = prep
-        .groups
-        .iter()
-        .find(|g| g.label == group)
-        .ok_or_else(|| input_err(format!("no season or aggregate named \"{group}\"")))?;
-    if pathway >= s.pathways.len() {
-        return Err(input_err(format!("pathway index {pathway} out of range")));
-    }
-    let d = draw(&s.ensemble, &g.records, g.key, member);
-    let ny = s.years.len();
-    let mut out: Vec<Vec<Result<CarbonateState, String>>> = prep
-        .variants
-        .iter()
-        .map(|_| (0..ny).map(|_| Err("not solved".to_string())).collect())
-        .collect();
-    prep.eval_member(pathway, &d, None, &mut |yi, vi, res, _, _| {
-        if let Some(slot) = out.get_mut(vi).and_then(|v| v.get_mut(yi)) {
-            *slot = res;
-        }
-    });
-    Ok(out)
+    Ok(assemble(&prep, &centrals, &outs))
 }
