@@ -16,6 +16,7 @@ pub mod calcification;
 pub mod ensemble;
 pub mod exposure;
 pub mod from_site;
+pub mod nec;
 pub mod output;
 pub mod pathways;
 pub mod projection;
