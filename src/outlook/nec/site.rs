@@ -46,6 +46,36 @@ impl NecSettings {
             .map(|r| (r.id, NecModel::for_site(r, self.cover, anchor)))
             .collect()
     }
+
+    /// Per relationship, the Omega_ar at which NEC = 0 at this site's cover. Anchoring scales
+    /// a row and keeps this point, and NEC rises with Omega_ar in every row, so "NEC ≤ 0" is
+    /// "Omega_ar ≤ this level": the first year of net dissolution is the first year Omega_ar
+    /// falls to it (`None` where a cover-weighted row has no cover, or a line never crosses).
+    pub fn zero_omegas(&self) -> Vec<(&'static str, Option<f64>)> {
+        self.relationships
+            .iter()
+            .map(|r| (r.id, r.zero_omega(self.cover).ok().flatten()))
+            .collect()
+    }
+
+    /// One member's NEC in a year and its paired change against the same member's present
+    /// state, per relationship: `(nec, nec − nec_present)`, mmol CaCO3 m⁻² d⁻¹, or why not.
+    pub fn member_values(
+        &self,
+        (omega, temp_c): (f64, f64),
+        (omega_present, temp_present): (f64, f64),
+    ) -> Vec<(&'static str, Result<(f64, f64), NecModelError>)> {
+        self.models(omega_present)
+            .into_iter()
+            .map(|(id, m)| {
+                let v = m.map(|m| {
+                    let now = m.nec(omega, temp_c);
+                    (now, now - m.nec(omega_present, temp_present))
+                });
+                (id, v)
+            })
+            .collect()
+    }
 }
 
 #[cfg(test)]
@@ -76,7 +106,19 @@ mod tests {
         for (id, m) in s.models(3.1) {
             assert!((m.unwrap().nec(3.1, 27.0) - 60.0).abs() < 1e-9, "{id}");
         }
+        // Paired: the member's change is zero when its state has not moved (steady
+        // atmosphere, warming off), and negative when Omega_ar falls.
+        for (id, v) in s.member_values((3.1, 27.0), (3.1, 27.0)) {
+            let (now, change) = v.unwrap();
+            assert!((now - 60.0).abs() < 1e-9 && change == 0.0, "{id}");
+        }
+        for (id, v) in s.member_values((2.8, 27.5), (3.1, 27.0)) {
+            assert!(v.unwrap().1 < 0.0, "{id}");
+        }
         let s = NecSettings::for_site(None, None, None);
+        // Without cover or anchor: the sediment, global and reef-flat zero points only.
+        let zeros: Vec<_> = s.zero_omegas().into_iter().filter_map(|(_, z)| z).collect();
+        assert_eq!(zeros.len(), 3);
         let models = s.models(3.1);
         let shaw = models.iter().find(|(id, _)| *id == "shaw_onetree").unwrap();
         assert_eq!(
