@@ -184,6 +184,7 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
         ensemble,
         classes,
         calcification: specs.calcification,
+        nec: specs.nec,
     };
     Ok(settings)
 }
@@ -329,6 +330,11 @@ mod tests {
             )]
         );
         assert_eq!(s.calcification.site_rate, None);
+        assert_eq!(s.nec.measured, None);
+        assert_eq!(
+            s.nec.relationships.len(),
+            crate::outlook::nec::builtin().len()
+        );
         let o = run(&site, &s, &NoProgress).unwrap();
         // The scenario changes only the cool season.
         let local = o.pathway_id("local").unwrap();
@@ -369,6 +375,14 @@ mod tests {
         );
         assert!(e.contains("site.toml:"), "{e}");
         // Settings the site check leaves to the outlook are still named by field.
+        let path = write_site(
+            dir.path(),
+            "[calcification.measured_nec]\nvalue = 10\nunit = \"mmol m-2 d-1\"\n\
+             method = \"census\"\nsource = \"x\"\nomega_ar = 0.1\n",
+        );
+        let loaded = load_site(&path).map_err(|d| d.render(false)).unwrap();
+        let e = from_loaded_site(&loaded).unwrap_err().render(false);
+        assert!(e.contains("calcification.measured_nec.omega_ar"), "{e}");
         let path = write_site(dir.path(), "[projection]\nmembers = 200000\n");
         let loaded = load_site(&path).map_err(|d| d.render(false)).unwrap();
         let e = from_loaded_site(&loaded).unwrap_err().render(false);

@@ -16,6 +16,7 @@ pub mod calcification;
 pub mod ensemble;
 pub mod exposure;
 pub mod from_site;
+pub mod nec;
 pub mod output;
 pub mod pathways;
 pub mod projection;
@@ -154,6 +155,9 @@ pub struct ProjectionSettings {
     pub classes: HabitatClasses,
     /// Calcification relationships and baseline rate.
     pub calcification: CalcificationSettings,
+    /// Field NEC relationships with the site's cover, habitat choice and measured NEC
+    /// ([`nec::NecSettings`]); not yet evaluated by the ensemble.
+    pub nec: nec::NecSettings,
 }
 
 impl ProjectionSettings {
@@ -180,6 +184,7 @@ impl ProjectionSettings {
             ensemble: EnsembleSettings::default(),
             classes: thresholds::guinotte_2003(),
             calcification: CalcificationSettings::default(),
+            nec: nec::NecSettings::for_site(None, None, None),
         }
     }
 }

@@ -14,6 +14,7 @@ use crate::site::spans::did_you_mean;
 use super::PathwaySpec;
 use super::calcification::{CalcificationSettings, builtin_relationships};
 use super::ensemble::MAX_MEMBERS;
+use super::nec::{NecSettings, SiteNec, site_nec};
 use super::pathways::{BUILTIN_NAMES, Observed, Pathway, USER_PPM_RANGE, USER_YEAR_RANGE};
 use super::warming::Warming;
 
@@ -25,6 +26,9 @@ pub struct CheckedSpecs {
     pub pathways: Vec<PathwaySpec>,
     pub years: Vec<i32>,
     pub calcification: CalcificationSettings,
+    /// The field NEC relationships ([`super::nec`]) with the site's cover, habitat choice and
+    /// its own measured NEC (`[calcification.measured_nec]`, checked) to anchor them to.
+    pub nec: NecSettings,
 }
 
 /// Collects errors about keys of the site file, each located in it.
@@ -67,11 +71,19 @@ pub fn check_specs(loaded: &LoadedSite) -> Result<CheckedSpecs, Diagnostics> {
     let years = check_years(&mut e);
     check_members(&mut e);
     let calcification = check_calcification(&mut e);
+    let measured_nec = check_measured_nec(&mut e);
+    let site_file = &loaded.site;
+    let nec = NecSettings::for_site(
+        site_file.site.habitat.as_deref(),
+        site_file.baseline.coral_cover_fraction,
+        measured_nec,
+    );
     match (calcification, e.diags.has_errors()) {
         (Some(calcification), false) => Ok(CheckedSpecs {
             pathways,
             years,
             calcification,
+            nec,
         }),
         _ => Err(e.diags),
     }
@@ -373,6 +385,24 @@ fn check_calcification(e: &mut Errors<'_>) -> Option<CalcificationSettings> {
         Ok(s) => Some(s),
         Err(m) => {
             e.push("calcification", m, "");
+            None
+        }
+    }
+}
+
+/// Checks `[calcification.measured_nec]`; every problem is reported at its key.
+fn check_measured_nec(e: &mut Errors<'_>) -> Option<SiteNec> {
+    let spec = e.loaded.site.calcification.measured_nec.as_ref()?;
+    match site_nec(spec) {
+        Ok(nec) => Some(nec),
+        Err(problems) => {
+            for p in problems {
+                e.push(
+                    &format!("calcification.measured_nec.{}", p.key),
+                    p.message,
+                    p.help,
+                );
+            }
             None
         }
     }

@@ -424,6 +424,28 @@ impl Default for ProjectionSpec {
 pub struct CalcificationSpec {
     #[serde(default)]
     pub relationships: Vec<String>,
+    /// `[calcification.measured_nec]`: the site's own measured net ecosystem calcification,
+    /// kept as written (the outlook checks unit, method and ranges).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub measured_nec: Option<MeasuredNecSpec>,
+}
+
+/// `[calcification.measured_nec]`: a net ecosystem calcification measured at the site, to
+/// which the field NEC relationships are anchored.
+#[derive(Clone, Debug, Deserialize, Serialize, PartialEq)]
+#[serde(deny_unknown_fields)]
+pub struct MeasuredNecSpec {
+    /// The measured NEC (negative for net dissolution), in `unit`.
+    pub value: f64,
+    /// "mmol m-2 d-1" or "kg m-2 yr-1" (of CaCO3).
+    pub unit: String,
+    /// "alkalinity anomaly" or "census".
+    pub method: String,
+    /// The study or survey it comes from.
+    pub source: String,
+    /// Omega_ar at which it was measured; without it, the site's present-day baseline.
+    #[serde(default)]
+    pub omega_ar: Option<f64>,
 }
 
 /// `[uncertainty]`: standard uncertainties of the measurements.
