@@ -156,7 +156,7 @@ pub struct ProjectionSettings {
     /// Calcification relationships and baseline rate.
     pub calcification: CalcificationSettings,
     /// Field NEC relationships with the site's cover, habitat choice and measured NEC
-    /// ([`nec::NecSettings`]); not yet evaluated by the ensemble.
+    /// ([`nec::NecSettings`]), evaluated per member like the calcification relationships.
     pub nec: nec::NecSettings,
 }
 

@@ -106,6 +106,8 @@ pub fn quantity_name(q: Quantity) -> Cow<'static, str> {
         Quantity::PhTChange => "ph_t_change".into(),
         Quantity::CalcChangePct(id) => format!("calc_change_pct_{}", id.as_str()).into(),
         Quantity::NetCalc(id) => format!("net_calc_kg_m2_yr_{}", id.as_str()).into(),
+        Quantity::Nec(id) => format!("nec_mmol_m2_d_{}", id.as_str()).into(),
+        Quantity::NecChange(id) => format!("nec_change_mmol_m2_d_{}", id.as_str()).into(),
     }
 }
 
@@ -118,6 +120,7 @@ pub fn quantity_decimals(q: Quantity) -> usize {
         Quantity::TempC => 3,
         Quantity::CalcChangePct(_) => 2,
         Quantity::NetCalc(_) => 4,
+        Quantity::Nec(_) | Quantity::NecChange(_) => 2,
     }
 }
 
@@ -130,6 +133,14 @@ pub fn criterion_text(c: &Criterion) -> (String, f64, &'static str) {
         } => (
             format!("omega_ar below {class}"),
             *threshold_omega_ar,
+            "omega_ar",
+        ),
+        Criterion::NetDissolution {
+            relationship,
+            omega_zero,
+        } => (
+            format!("nec at or below zero ({})", relationship.as_str()),
+            *omega_zero,
             "omega_ar",
         ),
     }
@@ -190,6 +201,14 @@ impl fmt::Display for Note {
                 f,
                 "{member_years} member-years could not be solved and were left out of the \
                  quantiles; first: {first}"
+            ),
+            Note::NecUnavailable {
+                relationship,
+                reason,
+            } => write!(
+                f,
+                "reef net calcification ({}) is not given: {reason}",
+                relationship.as_str()
             ),
         }
     }
@@ -527,6 +546,9 @@ struct JsonRelationship<'a> {
 
 #[derive(Serialize)]
 struct JsonCalc<'a> {
+    /// Reef-community NEC from field relationships: the rows, the site's cover, measured NEC
+    /// and the row closest to its habitat.
+    nec: &'a super::nec::NecSettings,
     baseline_rate_kg_m2_yr: Option<f64>,
     baseline_rate_source: &'a str,
     not_modelled: &'static str,
@@ -666,6 +688,7 @@ impl<'a> From<&'a Outlook> for JsonDoc<'a> {
                     .collect(),
             },
             calcification: JsonCalc {
+                nec: &o.nec,
                 baseline_rate_kg_m2_yr: o.site_rate.as_ref().and_then(|r| rounded(r.kg_m2_yr, 4)),
                 baseline_rate_source: o
                     .site_rate

@@ -58,6 +58,11 @@ pub enum Quantity {
     /// Net calcification: the site's measured rate times the relative factor, kg CaCO3 m⁻²
     /// yr⁻¹ (only when the site gives a measured rate).
     NetCalc(RelationshipId),
+    /// Reef-community net ecosystem calcification from a field relationship
+    /// ([`super::nec`]), mmol CaCO3 m⁻² d⁻¹ (negative: net dissolution).
+    Nec(RelationshipId),
+    /// Change of NEC from the member's own present-day state (paired), mmol CaCO3 m⁻² d⁻¹.
+    NecChange(RelationshipId),
 }
 
 impl Quantity {
@@ -82,8 +87,12 @@ impl Quantity {
     }
 
     /// Every quantity of a run with these relationships, in output order (net calcification
-    /// only `with_site_rate`).
-    pub fn all(relationships: &[Relationship], with_site_rate: bool) -> Vec<Quantity> {
+    /// only `with_site_rate`; NEC for the field relationships `nec` that give a value).
+    pub fn all(
+        relationships: &[Relationship],
+        with_site_rate: bool,
+        nec: &[RelationshipId],
+    ) -> Vec<Quantity> {
         let mut q = Quantity::STATE.to_vec();
         q.extend(Quantity::PAIRED_CHANGES);
         for r in relationships {
@@ -91,6 +100,10 @@ impl Quantity {
             if with_site_rate {
                 q.push(Quantity::NetCalc(r.rel_id()));
             }
+        }
+        for id in nec {
+            q.push(Quantity::Nec(*id));
+            q.push(Quantity::NecChange(*id));
         }
         q
     }
@@ -204,6 +217,8 @@ pub enum CrossingGroup {
 pub enum CrossingKind {
     /// Omega_ar falls strictly below a habitat threshold.
     OmegaArBelow,
+    /// Reef-community NEC falls to zero or below (net dissolution).
+    NetDissolution,
 }
 
 /// The criterion of a crossing.
@@ -215,6 +230,12 @@ pub enum Criterion {
         class: String,
         threshold_omega_ar: f64,
     },
+    /// NEC of a field relationship at or below zero, i.e. Omega_ar below the level at which
+    /// that relationship's NEC is zero at this site.
+    NetDissolution {
+        relationship: RelationshipId,
+        omega_zero: f64,
+    },
 }
 
 impl Criterion {
@@ -222,6 +243,17 @@ impl Criterion {
     pub fn kind(&self) -> CrossingKind {
         match self {
             Criterion::OmegaArBelow { .. } => CrossingKind::OmegaArBelow,
+            Criterion::NetDissolution { .. } => CrossingKind::NetDissolution,
+        }
+    }
+
+    /// The Omega_ar level the criterion is about.
+    pub fn omega_level(&self) -> f64 {
+        match self {
+            Criterion::OmegaArBelow {
+                threshold_omega_ar, ..
+            } => *threshold_omega_ar,
+            Criterion::NetDissolution { omega_zero, .. } => *omega_zero,
         }
     }
 }
@@ -314,6 +346,12 @@ pub enum Note {
         /// Up to three examples, each "record: warning".
         examples: Vec<String>,
     },
+    /// A field NEC relationship gives no value at this site (e.g. it needs coral cover or the
+    /// site's measured NEC).
+    NecUnavailable {
+        relationship: RelationshipId,
+        reason: String,
+    },
     /// Member-years that could not be solved and were left out of the quantiles.
     UnsolvedMembers {
         member_years: usize,
@@ -401,6 +439,8 @@ pub struct Outlook {
     pub relationships: Vec<Relationship>,
     /// The site's measured calcification rate, when it gives one.
     pub site_rate: Option<super::calcification::SiteRate>,
+    /// The field NEC relationships, the site's cover, measured NEC and habitat choice.
+    pub nec: super::nec::NecSettings,
     /// Warnings and notes (range flags, failed members, skipped seasons).
     pub notes: Vec<Note>,
     /// The thermal-stress outlook, when the site has a temperature record

@@ -98,6 +98,7 @@ pub(super) fn assemble(prep: &Prepared<'_>, centrals: &[Central], outs: &[TaskOu
         quantities: Quantity::all(
             &s.calcification.relationships,
             s.calcification.site_rate.is_some(),
+            &prep.nec.iter().map(|(id, _)| *id).collect::<Vec<_>>(),
         ),
         series,
         crossings,
@@ -106,6 +107,7 @@ pub(super) fn assemble(prep: &Prepared<'_>, centrals: &[Central], outs: &[TaskOu
         classes: s.classes.clone(),
         relationships: s.calcification.relationships.clone(),
         site_rate: s.calcification.site_rate.clone(),
+        nec: s.nec.clone(),
         notes,
         heat: None,
     }
@@ -320,16 +322,28 @@ fn crossings_of(
             .collect();
         present.sort_by(f64::total_cmp);
         let median_present = super::quantiles::quantile_sorted(&present, 0.5);
-        for (class, t) in s.classes.thresholds() {
+        let criteria = s
+            .classes
+            .thresholds()
+            .into_iter()
+            .map(|(class, t)| Criterion::OmegaArBelow {
+                class,
+                threshold_omega_ar: t,
+            })
+            .chain(prep.nec.iter().filter_map(|&(relationship, zero)| {
+                Some(Criterion::NetDissolution {
+                    relationship,
+                    omega_zero: zero?,
+                })
+            }));
+        for criterion in criteria {
+            let t = criterion.omega_level();
             out.push(Crossing {
                 pathway: PathwayId(p),
                 scenario: scenario_id(vi),
                 group: *group,
                 first_year: crossing_quantiles(members.iter().map(|m| m.first_below(t)).collect()),
-                criterion: Criterion::OmegaArBelow {
-                    class,
-                    threshold_omega_ar: t,
-                },
+                criterion,
                 met_at_baseline: median_present < t,
             });
         }

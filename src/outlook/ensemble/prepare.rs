@@ -5,7 +5,7 @@
 use std::collections::BTreeSet;
 
 use super::super::projection::RecordAnchor;
-use super::super::result::{GroupId, Note};
+use super::super::result::{GroupId, Note, RelationshipId};
 use super::super::scenario::Offsets;
 use super::super::{OutlookError, ProjectionSettings, SiteInput};
 use super::central::{OMEGA_AR, TEMP, Values, present_values};
@@ -83,6 +83,9 @@ pub(super) struct Prepared<'a> {
     pub horizon_knot: Vec<usize>,
     /// Each record's values at sampling (central constants).
     pub present: Vec<Values>,
+    /// Field NEC relationships that give a value at this site, with the Omega_ar at which
+    /// their NEC is zero (`None`: no zero within reach).
+    pub nec: Vec<(RelationshipId, Option<f64>)>,
 }
 
 impl<'a> Prepared<'a> {
@@ -125,6 +128,7 @@ impl<'a> Prepared<'a> {
             .map(|y| knots.iter().position(|k| k == y).unwrap_or(0))
             .collect();
         notes.extend(relationship_notes(s, &groups));
+        let nec = nec_available(s, &groups, &mut notes);
         notes.extend(range_survey(site, s));
         Ok(Prepared {
             site,
@@ -137,6 +141,7 @@ impl<'a> Prepared<'a> {
             knots,
             horizon_knot,
             present,
+            nec,
         })
     }
 }
@@ -266,6 +271,35 @@ pub(super) fn knot_years(years: &[i32], last_sample: i32) -> Vec<i32> {
     k.sort_unstable();
     k.dedup();
     k
+}
+
+/// The field NEC relationships that give a value at the site (judged at the aggregate's
+/// baseline; a relationship anchored at a stated Omega_ar does not depend on it), and notes
+/// on the others.
+fn nec_available(
+    s: &ProjectionSettings,
+    groups: &[Group],
+    notes: &mut Vec<Note>,
+) -> Vec<(RelationshipId, Option<f64>)> {
+    let omega = groups
+        .iter()
+        .find(|g| g.aggregate())
+        .map_or(f64::NAN, |g| g.omega_b);
+    let zeros = s.nec.zero_omegas();
+    let mut out = Vec::new();
+    for (id, model) in s.nec.models(omega) {
+        match model {
+            Ok(_) => out.push((
+                RelationshipId(id),
+                zeros.iter().find(|(z, _)| *z == id).and_then(|(_, v)| *v),
+            )),
+            Err(e) => notes.push(Note::NecUnavailable {
+                relationship: RelationshipId(id),
+                reason: e.to_string(),
+            }),
+        }
+    }
+    out
 }
 
 /// Relationships that cannot be scaled at a group's baseline, or whose fitted range the

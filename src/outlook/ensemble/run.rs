@@ -494,6 +494,7 @@ fn summarise(
             series.push((qn, net));
         }
     }
+    series.extend(nec_series(prep, mv, &horizons));
     let thresholds = s.classes.thresholds();
     let shares = |pct: &dyn Fn(f64, usize) -> f64| -> Vec<ThresholdShare> {
         thresholds
@@ -520,6 +521,79 @@ fn summarise(
         omega_present: mv.present.iter().map(|x| x[OMEGA_AR]).collect(),
         omega_knots: mv.at.iter().map(|x| x[OMEGA_AR]).collect(),
     }
+}
+
+/// NEC and its paired change per available field relationship, at the horizon years: each
+/// member's mean Omega_ar in the year against its own present-day mean (the relationship
+/// anchored, when the site gives a measured NEC, at that member's present state unless the
+/// site states the Omega_ar of its measurement).
+fn nec_series(
+    prep: &Prepared<'_>,
+    mv: &MemberValues,
+    horizons: &[(i32, usize)],
+) -> Vec<(Quantity, Vec<QuantilePoint>)> {
+    let nk = prep.knots.len();
+    let mut out = Vec::new();
+    for &(id, _) in &prep.nec {
+        let Some(rel) = prep
+            .s
+            .nec
+            .relationships
+            .iter()
+            .find(|r| r.id == id.as_str())
+        else {
+            continue;
+        };
+        // (nec, change, outside span) per member, per horizon.
+        let mut per_h: Vec<Vec<(f64, f64, bool)>> =
+            vec![Vec::with_capacity(mv.present.len()); horizons.len()];
+        for (m, p) in mv.present.iter().enumerate() {
+            let models = prep.s.nec.models(p[OMEGA_AR]);
+            let model = models
+                .iter()
+                .find(|(x, _)| *x == id.as_str())
+                .and_then(|(_, r)| r.as_ref().ok());
+            for (h, &(_, k)) in horizons.iter().enumerate() {
+                let v = match (model, mv.at.get(m * nk + k)) {
+                    (Some(model), Some(x))
+                        if x[OMEGA_AR].is_finite() && p[OMEGA_AR].is_finite() =>
+                    {
+                        let now = model.nec(x[OMEGA_AR], x[TEMP]);
+                        let outside = rel.extrapolation(x[OMEGA_AR], x[TEMP])
+                            != super::super::nec::Extrapolation::Inside;
+                        (now, now - model.nec(p[OMEGA_AR], p[TEMP]), outside)
+                    }
+                    _ => (f64::NAN, f64::NAN, false),
+                };
+                if let Some(slot) = per_h.get_mut(h) {
+                    slot.push(v);
+                }
+            }
+        }
+        let checked = !matches!(rel.omega_span, super::super::nec::OmegaSpan::NotVerified);
+        let mut nec_pts = Vec::with_capacity(horizons.len());
+        let mut change_pts = Vec::with_capacity(horizons.len());
+        for (&(year, _), vals) in horizons.iter().zip(&per_h) {
+            let solved = vals.iter().filter(|v| v.0.is_finite()).count();
+            let outside = vals.iter().filter(|v| v.0.is_finite() && v.2).count();
+            let pct = (checked && solved > 0).then(|| 100.0 * outside as f64 / solved as f64);
+            let point = |f: fn(&(f64, f64, bool)) -> f64| {
+                let mut xs: Vec<f64> = vals.iter().map(f).collect();
+                let q = five_quantiles(&mut xs);
+                QuantilePoint {
+                    year,
+                    q: Quantiles::from_levels(q),
+                    members: xs.len(),
+                    outside_fit_pct: pct,
+                }
+            };
+            nec_pts.push(point(|v| v.0));
+            change_pts.push(point(|v| v.1));
+        }
+        out.push((Quantity::Nec(id), nec_pts));
+        out.push((Quantity::NecChange(id), change_pts));
+    }
+    out
 }
 
 /// Time-weighted percent of the group's records with Omega_ar below `t` (records without a

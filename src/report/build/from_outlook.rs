@@ -151,7 +151,10 @@ pub(super) fn crossings(outlook: &Outlook) -> Vec<Crossing> {
         .filter_map(|c| {
             let Criterion::OmegaArBelow {
                 threshold_omega_ar, ..
-            } = c.criterion;
+            } = c.criterion
+            else {
+                return None;
+            };
             let CrossingGroup::Group(g @ GroupId::Season(_)) = c.group else {
                 return None;
             };
