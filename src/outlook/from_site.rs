@@ -32,10 +32,11 @@ pub fn from_loaded_site(
 /// The records of a loaded site as the outlook takes them.
 pub fn site_input(loaded: &LoadedSite) -> SiteInput {
     let ta_fit_rmse = loaded.baseline.ta_salinity.as_ref().map(|f| f.rmse_umol_kg);
+    let folder = site_folder(loaded);
     let records: Vec<ProjectionRecord> = loaded
         .samples
         .iter()
-        .filter_map(|smp| projectable(smp, ta_fit_rmse))
+        .filter_map(|smp| projectable(smp, ta_fit_rmse, folder))
         .filter_map(Result::ok)
         .collect();
     SiteInput {
@@ -47,13 +48,28 @@ pub fn site_input(loaded: &LoadedSite) -> SiteInput {
     }
 }
 
+/// The folder of the site file: record labels name their files relative to it, as the site
+/// file does (no folder of the machine the run was made on).
+fn site_folder(loaded: &LoadedSite) -> &std::path::Path {
+    loaded
+        .path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(std::path::Path::new("."))
+}
+
 /// The projection record of a sample the outlook uses (solved, above the site's salinity
-/// floor), or why the projection cannot take it; `None` for rows the site left out.
-fn projectable(smp: &Sample, ta_fit_rmse: Option<f64>) -> Option<Result<ProjectionRecord, String>> {
+/// floor), or why the projection cannot take it; `None` for rows the site left out. `folder`:
+/// the site file's folder, for the record's label.
+fn projectable(
+    smp: &Sample,
+    ta_fit_rmse: Option<f64>,
+    folder: &std::path::Path,
+) -> Option<Result<ProjectionRecord, String>> {
     if !smp.is_used() {
         return None;
     }
-    let r = record_of(smp, ta_fit_rmse)?;
+    let r = record_of(smp, ta_fit_rmse, folder)?;
     Some(r.validate().map(|()| r).map_err(|e| e.to_string()))
 }
 
@@ -62,10 +78,11 @@ fn projectable(smp: &Sample, ta_fit_rmse: Option<f64>) -> Option<Result<Projecti
 /// that `check` shows what `project` will leave out.
 pub fn rows_left_out(loaded: &LoadedSite) -> Diagnostics {
     let rmse = loaded.baseline.ta_salinity.as_ref().map(|f| f.rmse_umol_kg);
+    let folder = site_folder(loaded);
     loaded
         .samples
         .iter()
-        .filter_map(|smp| match projectable(smp, rmse)? {
+        .filter_map(|smp| match projectable(smp, rmse, folder)? {
             Ok(_) => None,
             Err(m) => Some(
                 Diagnostic::warning(format!("{m}; the row is left out of the outlook"))
@@ -93,7 +110,7 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
     if !loaded
         .samples
         .iter()
-        .any(|smp| matches!(projectable(smp, rmse), Some(Ok(_))))
+        .any(|smp| matches!(projectable(smp, rmse, site_folder(loaded)), Some(Ok(_))))
     {
         return Err(err(
             "records",
@@ -179,7 +196,11 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
 }
 
 /// The projection record of one sample (`None` when its state was not solved).
-fn record_of(smp: &Sample, ta_fit_rmse: Option<f64>) -> Option<ProjectionRecord> {
+fn record_of(
+    smp: &Sample,
+    ta_fit_rmse: Option<f64>,
+    folder: &std::path::Path,
+) -> Option<ProjectionRecord> {
     let st = smp.state?;
     let m = &smp.measured;
     let ta = if smp.ta_estimated {
@@ -202,7 +223,7 @@ fn record_of(smp: &Sample, ta_fit_rmse: Option<f64>) -> Option<ProjectionRecord>
     Some(ProjectionRecord {
         label: format!(
             "{}:{} (station {})",
-            smp.source_file.display(),
+            crate::fsio::relative_to(folder, &smp.source_file).display(),
             smp.line,
             smp.station
         ),

@@ -13,9 +13,10 @@ use crate::site::LoadedSite;
 use crate::site::baseline::Stats;
 use crate::site::schema::MONTH_NAMES;
 
+mod appendix;
 mod from_outlook;
 
-use from_outlook::{horizons, pathway_list, threshold_classes};
+use from_outlook::{horizons, pathway_list, reader_text, threshold_classes};
 
 /// Per season while counting coverage: solved samples, years, first and last date.
 type SeasonTally = (usize, BTreeSet<i32>, Option<String>, Option<String>);
@@ -67,8 +68,12 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
 
     let mut sites = Vec::with_capacity(runs.len());
     let mut inputs = Vec::new();
+    // Site files are named relative to the first site file's folder (as in the command line),
+    // every other input relative to its own site file (as written there).
+    let first_folder = folder_of(&first.loaded.path);
     for run in runs {
         sites.push(site_report(run, &horizons, opts.appendix)?);
+        let folder = folder_of(&run.loaded.path);
         let logger = run.outlook.heat.as_ref().and_then(|h| match &h.source {
             crate::site::temperature::ThermalSource::Logger { path, .. } => Some(path),
             crate::site::temperature::ThermalSource::SensorRecords { .. } => None,
@@ -81,8 +86,9 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
             } else {
                 "records"
             };
-            let f = InputFile::hash(role, path)
+            let mut f = InputFile::hash(role, path)
                 .map_err(|e| format!("{}: cannot read for its checksum: {e}", path.display()))?;
+            f.path = shown_path(if i == 0 { first_folder } else { folder }, path);
             inputs.push(f);
         }
     }
@@ -106,11 +112,24 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
         ),
         setting("Record variability", settings.record_variability.clone()),
     ];
+    // The outlook's texts in the report's symbols and units (as under Methods).
+    for s in &mut repro_settings {
+        s.value = reader_text(&s.value);
+    }
     for run in runs {
-        let m = &run.loaded.methods;
+        // The selectable fits by their citations (the site file's identifiers are not words
+        // for readers).
+        let chosen: Vec<String> = run
+            .loaded
+            .methods
+            .citations()
+            .into_iter()
+            .filter(|(quantity, _)| ["K1, K2", "Total boron", "KF"].contains(&quantity.as_str()))
+            .map(|(quantity, citation)| format!("{quantity} {citation}"))
+            .collect();
         repro_settings.push(setting(
             &format!("Constant set ({})", run.loaded.site.site.name),
-            format!("K1/K2 {}, boron {}, KF {}", m.k1k2, m.boron, m.kf),
+            chosen.join("; "),
         ));
     }
 
@@ -164,7 +183,20 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
             ensemble_members: settings.members,
         },
         include_appendix: opts.appendix,
+        data_out: None,
     })
+}
+
+/// The folder of a site file ("." for a bare file name).
+fn folder_of(site: &Path) -> &Path {
+    site.parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."))
+}
+
+/// A file as the report names it: relative to `folder`, never with a folder of this machine.
+fn shown_path(folder: &Path, path: &Path) -> String {
+    crate::fsio::relative_to(folder, path).display().to_string()
 }
 
 fn setting(name: &str, value: String) -> Setting {
@@ -223,6 +255,8 @@ fn months_text(months: &[u32]) -> String {
 /// (`LoadedSite::qc`) group by severity, kind and field, so a long sensor series gives one
 /// line per kind of finding.
 fn grouped_findings(loaded: &LoadedSite) -> Vec<QcFinding> {
+    let folder = folder_of(&loaded.path);
+    let display_path = |p: &Path| shown_path(folder, p);
     struct Group {
         key: String,
         level: QcLevel,
@@ -356,10 +390,6 @@ fn line_ranges(lines: &[usize]) -> String {
     format!("{}{more}", shown.join(", "))
 }
 
-fn display_path(p: &Path) -> String {
-    p.display().to_string()
-}
-
 fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<SiteReport, String> {
     let loaded = run.loaded;
     let outlook = run.outlook;
@@ -406,7 +436,7 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
     let local_scenarios = from_outlook::local_scenarios(outlook, limiting, horizons);
     let methods = methods(loaded, outlook, &absolute_notes);
     let samples = if appendix {
-        sample_rows(loaded)
+        appendix::sample_rows(loaded)
     } else {
         Vec::new()
     };
@@ -438,6 +468,7 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
         calcification,
         local_scenarios,
         methods,
+        record_files: appendix::record_files(loaded),
         samples,
     })
 }
@@ -484,7 +515,7 @@ fn coverage(loaded: &LoadedSite) -> Coverage {
         record_files: loaded
             .records
             .iter()
-            .map(|r| display_path(&r.path))
+            .map(|r| shown_path(folder_of(&loaded.path), &r.path))
             .collect(),
         n_records: loaded.records.iter().map(|r| r.rows).sum(),
         n_used: loaded.samples.iter().filter(|s| s.state.is_some()).count(),
@@ -570,61 +601,6 @@ fn methods(loaded: &LoadedSite, outlook: &Outlook, absolute_notes: &[String]) ->
         projection: from_outlook::settings(outlook),
         notes,
     }
-}
-
-/// Every sample for the chemistry appendix.
-fn sample_rows(loaded: &LoadedSite) -> Vec<SampleRow> {
-    loaded
-        .samples
-        .iter()
-        .map(|s| {
-            let st = s.state.as_ref();
-            let mut measured = Vec::new();
-            // Names as documented on `SampleRow::measured`.
-            for (name, v) in [
-                ("ta", s.measured.ta()),
-                ("dic", s.measured.dic()),
-                ("ph_t", s.measured.ph_t()),
-                ("pco2", s.measured.pco2()),
-                ("fco2", s.measured.fco2()),
-            ] {
-                if v.is_some() {
-                    measured.push(name.to_string());
-                }
-            }
-            let mut flags: Vec<String> = s.flags.labels().iter().map(|l| l.to_string()).collect();
-            if s.ta_estimated {
-                flags.push("TA from TA–S fit".to_string());
-            }
-            SampleRow {
-                file: s
-                    .source_file
-                    .file_name()
-                    .map(|f| f.to_string_lossy().into_owned())
-                    .unwrap_or_default(),
-                row: s.line as u64,
-                date: s.time.format("%Y-%m-%d %H:%M").to_string(),
-                station: s.station.to_string(),
-                season: loaded
-                    .seasons
-                    .get(s.season)
-                    .map(|x| x.name.clone())
-                    .unwrap_or_default(),
-                temp_c: s.temp_c,
-                salinity: s.salinity,
-                pressure_dbar: s.pressure_dbar,
-                ta: st.map(|x| x.ta),
-                dic: st.map(|x| x.dic),
-                ph_t: st.map(|x| x.ph_t),
-                pco2: st.map(|x| x.pco2),
-                omega_ar: st.map(|x| x.omega_ar),
-                omega_ca: st.map(|x| x.omega_ca),
-                measured,
-                flags,
-                used: s.is_used(),
-            }
-        })
-        .collect()
 }
 
 #[cfg(test)]
