@@ -98,10 +98,7 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
         setting("Ensemble members", settings.members.to_string()),
         setting("Seed", settings.seed.to_string()),
         setting("Disequilibrium", settings.disequilibrium.clone()),
-        setting(
-            "Warming",
-            if settings.warming { "on" } else { "off" }.to_string(),
-        ),
+        setting("Warming", from_outlook::warming_text(first.outlook)),
         setting(
             "Constant uncertainties",
             settings.constants_uncertainty.clone(),

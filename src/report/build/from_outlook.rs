@@ -339,13 +339,36 @@ fn unchecked_text(parts: &str) -> String {
     }
 }
 
+/// The warming setting in words: off, or on with each pathway's sea-surface warming and where
+/// the built-in values come from (their anchors could not be checked against the paper).
+pub(super) fn warming_text(outlook: &Outlook) -> String {
+    if !outlook.settings.warming {
+        return "off".to_string();
+    }
+    let per_pathway: Vec<String> = outlook
+        .pathways
+        .iter()
+        .map(|p| format!("{} {} °C", p.name, fmt::signed(p.warming_2090_c, 2)))
+        .collect();
+    format!(
+        "on: sea-surface warming from 1995–2014 to 2081–2100 of {}, added to the record \
+         temperatures along each pathway's ln CO2 (common practice; a linear ramp for a \
+         pathway without annual CO2 over 1995–2100). The built-in values are \
+         the IPCC AR6 global-mean sea-surface temperature changes for SSP1-2.6 and SSP5-8.5 \
+         (Fox-Kemper et al. 2021, Working Group I chapter 9), not checked against the original \
+         publication, and for other pathways interpolated between them by 2100 CO2 (a rule of \
+         this tool); values given in the site file are the site's own.",
+        per_pathway.join(", ")
+    )
+}
+
 /// The projection settings for the Methods section.
 pub(super) fn settings(outlook: &Outlook) -> Vec<Setting> {
     let st = &outlook.settings;
     let settings = vec![
         super::setting("Observed CO2", st.observed_co2_source.clone()),
         super::setting("Disequilibrium", st.disequilibrium.clone()),
-        super::setting("Warming", if st.warming { "on" } else { "off" }.to_string()),
+        super::setting("Warming", warming_text(outlook)),
         super::setting(
             "Ensemble",
             format!("{} members, seed {}", st.members, st.seed),
