@@ -105,7 +105,7 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
         ),
         setting(
             "Measurement uncertainties",
-            settings.measurement_uncertainty.clone(),
+            measurement_text(first.loaded, &settings.measurement_uncertainty),
         ),
         setting("Record variability", settings.record_variability.clone()),
     ];
@@ -182,6 +182,29 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
         include_appendix: opts.appendix,
         data_out: None,
     })
+}
+
+/// The measurement-uncertainty setting in the report's words, saying so when the site uses the
+/// built-in pH or pCO2 uncertainty (values recalled, not checked against a published source).
+fn measurement_text(loaded: &LoadedSite, outlook_text: &str) -> String {
+    let given = &loaded.site.uncertainty;
+    let built_in = crate::site::schema::UncertaintySpec::default();
+    let mut unchecked = Vec::new();
+    if (given.ph - built_in.ph).abs() < 1e-12 {
+        unchecked.push(format!("pH uncertainty of {}", built_in.ph));
+    }
+    if (given.pco2_pct - built_in.pco2_pct).abs() < 1e-12 {
+        unchecked.push(format!("pCO₂/fCO₂ uncertainty of {} %", built_in.pco2_pct));
+    }
+    let text = reader_text(outlook_text);
+    if unchecked.is_empty() {
+        text
+    } else {
+        format!(
+            "{text}. The built-in {} were not checked against a published source.",
+            unchecked.join(" and ")
+        )
+    }
 }
 
 /// The folder of a site file ("." for a bare file name).
@@ -595,7 +618,16 @@ fn methods(loaded: &LoadedSite, outlook: &Outlook, absolute_notes: &[String]) ->
     notes.extend(from_outlook::notes(outlook, absolute_notes));
     Methods {
         chemistry,
-        projection: from_outlook::settings(outlook),
+        projection: from_outlook::settings(outlook)
+            .into_iter()
+            .map(|s| match s.name.as_str() {
+                "Measurement uncertainties" => setting(
+                    &s.name,
+                    measurement_text(loaded, &outlook.settings.measurement_uncertainty),
+                ),
+                _ => s,
+            })
+            .collect(),
         notes,
     }
 }
