@@ -113,6 +113,31 @@ pub fn is_same_file_as_any(out: &Path, inputs: &[PathBuf]) -> bool {
         .any(|p| p == out_abs)
 }
 
+/// `path` written relative to the folder `base` (both as given or, failing that, both made
+/// absolute); the file name alone when no relation can be worked out.
+pub fn relative_to(base: &Path, path: &Path) -> PathBuf {
+    if let Ok(rest) = path.strip_prefix(base) {
+        return rest.to_path_buf();
+    }
+    let (Ok(base), Ok(path)) = (std::path::absolute(base), std::path::absolute(path)) else {
+        return path.file_name().map(PathBuf::from).unwrap_or_default();
+    };
+    let b: Vec<_> = base.components().collect();
+    let p: Vec<_> = path.components().collect();
+    let common = b.iter().zip(&p).take_while(|(x, y)| x == y).count();
+    if common == 0 {
+        return path.file_name().map(PathBuf::from).unwrap_or_default();
+    }
+    let mut out = PathBuf::new();
+    for _ in common..b.len() {
+        out.push("..");
+    }
+    for c in &p[common..] {
+        out.push(c);
+    }
+    out
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -139,5 +164,26 @@ mod tests {
         write_bytes_atomic(&target, b"new").unwrap();
         assert_eq!(std::fs::read_to_string(&target).unwrap(), "new");
         assert!(is_same_file_as_any(&target, std::slice::from_ref(&target)));
+    }
+
+    #[test]
+    fn paths_are_written_relative_to_a_folder() {
+        let p = |s: &str| PathBuf::from(s);
+        assert_eq!(
+            relative_to(Path::new("sites"), Path::new("sites/a.toml")),
+            p("a.toml")
+        );
+        assert_eq!(
+            relative_to(Path::new("/x/sites"), Path::new("/x/other/b.toml")),
+            p("../other/b.toml")
+        );
+        assert_eq!(
+            relative_to(Path::new("."), Path::new("a.toml")),
+            p("a.toml")
+        );
+        assert_eq!(
+            relative_to(Path::new("/x/sites"), Path::new("/x/sites/deep/c.toml")),
+            p("deep/c.toml")
+        );
     }
 }

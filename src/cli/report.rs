@@ -85,21 +85,37 @@ impl ReportArgs {
     }
 
     /// Renders the model and writes the PDF (and `--data-out` JSON). Nothing is written when
-    /// the typesetting fails; the JSON is written only after the PDF succeeded. `dated_by_user`
-    /// as for [`ReportArgs::render_options`].
+    /// the typesetting fails; the JSON is written only after the PDF succeeded. The JSON is
+    /// serialised first, so that the report can name it with its SHA-256 (the model's
+    /// `data_out`, which the JSON itself does not hold). `dated_by_user` as for
+    /// [`ReportArgs::render_options`].
     pub fn write_outputs(
         &self,
-        model: &crate::report::ReportModel,
+        model: &mut crate::report::ReportModel,
         dated_by_user: bool,
     ) -> Result<crate::report::Rendered, ReportError> {
         let out = self.output.as_deref().ok_or_else(|| {
             ReportError::Refused("no output file given (use -o FILE.pdf)".to_string())
         })?;
         let options = self.render_options(dated_by_user)?;
+        let json = match &self.data_out {
+            Some(path) => {
+                let bytes = crate::report::data_json_bytes(model)?;
+                model.data_out = Some(crate::report::OutputFile {
+                    name: path
+                        .file_name()
+                        .map(|n| n.to_string_lossy().into_owned())
+                        .unwrap_or_default(),
+                    sha256: crate::report::sha256_hex(&bytes),
+                });
+                Some((path, bytes))
+            }
+            None => None,
+        };
         let rendered = crate::report::render(model, &options)?;
         crate::report::write_atomic(out, &rendered.pdf)?;
-        if let Some(json) = &self.data_out {
-            crate::report::write_data_json(model, json)?;
+        if let Some((path, bytes)) = json {
+            crate::report::write_atomic(path, &bytes)?;
         }
         Ok(rendered)
     }
@@ -208,7 +224,7 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
     let mut command = String::from("calcisite report");
     for s in &args.sites {
         command.push(' ');
-        command.push_str(&relative_to(base, s).display().to_string());
+        command.push_str(&crate::fsio::relative_to(base, s).display().to_string());
     }
     if let Some(seed) = args.seed {
         command.push_str(&format!(" --seed {seed}"));
@@ -223,7 +239,7 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
         appendix: args.appendix,
         command: Some(command),
     };
-    let model = match report_model(&runs, &opts) {
+    let mut model = match report_model(&runs, &opts) {
         Ok(m) => m,
         Err(e) => {
             eprintln!("error: {e}");
@@ -232,7 +248,7 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
     };
     // The model builder takes the report date from the first site that gives `[report] date`.
     let dated_by_user = runs.iter().any(|r| r.loaded.site.report.date.is_some());
-    match args.write_outputs(&model, dated_by_user) {
+    match args.write_outputs(&mut model, dated_by_user) {
         Ok(rendered) => {
             if !crate::diag::quiet() {
                 eprint!("{}", rendered.warnings);
@@ -252,31 +268,6 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
             EXIT_INPUT
         }
     }
-}
-
-/// `path` written relative to the folder `base` (both as given or, failing that, both made
-/// absolute); the file name alone when no relation can be worked out.
-fn relative_to(base: &Path, path: &Path) -> PathBuf {
-    if let Ok(rest) = path.strip_prefix(base) {
-        return rest.to_path_buf();
-    }
-    let (Ok(base), Ok(path)) = (std::path::absolute(base), std::path::absolute(path)) else {
-        return path.file_name().map(PathBuf::from).unwrap_or_default();
-    };
-    let b: Vec<_> = base.components().collect();
-    let p: Vec<_> = path.components().collect();
-    let common = b.iter().zip(&p).take_while(|(x, y)| x == y).count();
-    if common == 0 {
-        return path.file_name().map(PathBuf::from).unwrap_or_default();
-    }
-    let mut out = PathBuf::new();
-    for _ in common..b.len() {
-        out.push("..");
-    }
-    for c in &p[common..] {
-        out.push(c);
-    }
-    out
 }
 
 #[cfg(test)]
@@ -315,27 +306,6 @@ mod tests {
         );
         assert!(c.args.appendix && c.args.pdfa);
         assert_eq!(c.args.seed, Some(7));
-    }
-
-    #[test]
-    fn command_paths_are_relative_to_the_first_site_folder() {
-        let p = |s: &str| PathBuf::from(s);
-        assert_eq!(
-            relative_to(Path::new("sites"), Path::new("sites/a.toml")),
-            p("a.toml")
-        );
-        assert_eq!(
-            relative_to(Path::new("/x/sites"), Path::new("/x/other/b.toml")),
-            p("../other/b.toml")
-        );
-        assert_eq!(
-            relative_to(Path::new("."), Path::new("a.toml")),
-            p("a.toml")
-        );
-        assert_eq!(
-            relative_to(Path::new("/x/sites"), Path::new("/x/sites/deep/c.toml")),
-            p("deep/c.toml")
-        );
     }
 
     #[test]

@@ -90,6 +90,10 @@ pub struct Relationship {
     pub scope: &'static str,
     /// Status on the fact sheet: V verified, M from memory (with the part it applies to).
     pub status: &'static str,
+    /// For readers: the parts that were not checked against the original publication, in
+    /// words ("" when every part was). The report prints this; it never prints `status`.
+    #[serde(skip)]
+    pub unchecked: &'static str,
     /// The form used in computation.
     pub form: Form,
 }
@@ -150,6 +154,7 @@ pub fn builtin_relationships() -> Vec<Relationship> {
             temp_range_c: None,
             scope: "coral calcification in experiments; Omega_ar about 1-5",
             status: "M (from memory, medium confidence)",
+            unchecked: "the sensitivity of 15 % per unit Ω_ar and the fitted Ω_ar range 1–5",
             form: Form::LinearPercentPerOmega {
                 pct_per_unit: CHAN_CONNOLLY_2013_PCT_PER_OMEGA,
             },
@@ -170,6 +175,9 @@ pub fn builtin_relationships() -> Vec<Relationship> {
             scope: "inorganic aragonite precipitation in seawater, 5-37 degC; applied to reef \
                     gross calcification by Silverman et al. (2009)",
             status: "form and Burton & Walter k, n points V; k(T), n(T) coefficients M",
+            unchecked: "the coefficients of k(T) and n(T); they reproduce the rate constants and \
+                        reaction orders of Burton & Walter (1987) at 5, 25 and 37 °C, which were \
+                        checked",
             form: Form::SilvermanRateLaw,
         },
         Relationship {
@@ -184,8 +192,9 @@ pub fn builtin_relationships() -> Vec<Relationship> {
             omega_range: (1.0, 5.0),
             temp_range_c: None,
             scope: "experimental corals and a coral community (Biosphere-2 mesocosm); fitted \
-                    Omega_ar range about 1-5 (from memory)",
+                    Omega_ar range about 1-5",
             status: "M (from memory, low-medium confidence on the 40 % figure and the range)",
+            unchecked: "the fitted Ω_ar range 1–5 (which marks extrapolation here)",
             form: Form::LinearOmegaMinusOne,
         },
     ]

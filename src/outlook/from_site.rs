@@ -33,12 +33,13 @@ pub fn from_loaded_site(
 /// The records of a loaded site as the outlook takes them.
 pub fn site_input(loaded: &LoadedSite) -> SiteInput {
     let fit = loaded.baseline.ta_salinity.as_ref();
+    let folder = site_folder(loaded);
     let mut stations: Vec<&str> = Vec::new();
     let records: Vec<ProjectionRecord> = loaded
         .samples
         .iter()
         .filter_map(|smp| {
-            let mut r = projectable(smp, fit)?.ok()?;
+            let mut r = projectable(smp, fit, folder)?.ok()?;
             if let Some(u) = r.unit.as_mut() {
                 u.station = station_number(&mut stations, &smp.station);
             }
@@ -54,16 +55,28 @@ pub fn site_input(loaded: &LoadedSite) -> SiteInput {
     }
 }
 
+/// The folder of the site file: record labels name their files relative to it, as the site
+/// file does (no folder of the machine the run was made on).
+fn site_folder(loaded: &LoadedSite) -> &std::path::Path {
+    loaded
+        .path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(std::path::Path::new("."))
+}
+
 /// The projection record of a sample the outlook uses (solved, above the site's salinity
-/// floor), or why the projection cannot take it; `None` for rows the site left out.
+/// floor), or why the projection cannot take it; `None` for rows the site left out. `folder`:
+/// the site file's folder, for the record's label.
 fn projectable(
     smp: &Sample,
     fit: Option<&TaSalinityFit>,
+    folder: &std::path::Path,
 ) -> Option<Result<ProjectionRecord, String>> {
     if !smp.is_used() {
         return None;
     }
-    let r = record_of(smp, fit)?;
+    let r = record_of(smp, fit, folder)?;
     Some(r.validate().map(|()| r).map_err(|e| e.to_string()))
 }
 
@@ -72,10 +85,11 @@ fn projectable(
 /// that `check` shows what `project` will leave out.
 pub fn rows_left_out(loaded: &LoadedSite) -> Diagnostics {
     let fit = loaded.baseline.ta_salinity.as_ref();
+    let folder = site_folder(loaded);
     loaded
         .samples
         .iter()
-        .filter_map(|smp| match projectable(smp, fit)? {
+        .filter_map(|smp| match projectable(smp, fit, folder)? {
             Ok(_) => None,
             Err(m) => Some(
                 Diagnostic::warning(format!("{m}; the row is left out of the outlook"))
@@ -103,7 +117,7 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
     if !loaded
         .samples
         .iter()
-        .any(|smp| matches!(projectable(smp, fit), Some(Ok(_))))
+        .any(|smp| matches!(projectable(smp, fit, site_folder(loaded)), Some(Ok(_))))
     {
         return Err(err(
             "records",
@@ -190,7 +204,11 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
 }
 
 /// The projection record of one sample (`None` when its state was not solved).
-fn record_of(smp: &Sample, fit: Option<&TaSalinityFit>) -> Option<ProjectionRecord> {
+fn record_of(
+    smp: &Sample,
+    fit: Option<&TaSalinityFit>,
+    folder: &std::path::Path,
+) -> Option<ProjectionRecord> {
     let st = smp.state?;
     let m = &smp.measured;
     let ta = if smp.ta_estimated {
@@ -217,7 +235,7 @@ fn record_of(smp: &Sample, fit: Option<&TaSalinityFit>) -> Option<ProjectionReco
     Some(ProjectionRecord {
         label: format!(
             "{}:{} (station {})",
-            smp.source_file.display(),
+            crate::fsio::relative_to(folder, &smp.source_file).display(),
             smp.line,
             smp.station
         ),

@@ -87,15 +87,17 @@ pub fn annual_table() -> Result<&'static [AnnualRow], PathwayError> {
 /// linearly to zero (common practice for joining a scenario to observations without a step).
 pub const JOIN_FADE_YEARS: i32 = 10;
 
-/// Citation carried with every SSP pathway in the outputs.
+/// Citation carried with every SSP pathway in the outputs, in words a reader can look up (the
+/// copy the table was taken from is named in `data/co2-annual.md`, not here).
 pub const SSP_SOURCE: &str = "Meinshausen et al. (2020), Geosci. Model Dev. 13:3571-3605, \
-     annual CMIP6 concentrations to 2300 (as carried in WRF run/CAMtr_volume_mixing_ratio.SSP*); \
-     observed NOAA GML global marine-surface annual means to the last observed year, the \
-     offset at that year fading linearly to zero over 10 years (common practice)";
+     annual CMIP6 greenhouse-gas concentrations to 2300; observed NOAA GML global \
+     marine-surface annual means to the last observed year, the offset at that year fading \
+     linearly to zero over 10 years (common practice)";
 
-/// Citation of the observed record.
-pub const NOAA_SOURCE: &str = "NOAA GML global marine-surface annual mean CO2 (co2_annmean_gl), \
-     1979-2025 (datasets/co2-ppm data/co2-annmean-gl.csv at commit 146bdc6)";
+/// Citation of the observed record, in words a reader can look up (the copy and version used
+/// are named in `data/co2-annual.md`).
+pub const NOAA_SOURCE: &str = "NOAA Global Monitoring Laboratory (GML), globally averaged \
+     marine-surface annual mean CO2, 1979-2025 (release of 2026-08-01)";
 
 /// Plausible range for any user-given atmospheric CO2 value, ppm (a guard against unit slips,
 /// not a physical law: glacial minima are about 180 ppm and the SSP extensions peak near

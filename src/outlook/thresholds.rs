@@ -18,13 +18,19 @@ pub struct HabitatClasses {
     pub bands: Vec<Band>,
     /// Where the classes come from.
     pub source: String,
+    /// Whether the class limits were checked against `source` (a site's own classes are
+    /// taken as checked by whoever wrote them into the site file with their source). Limits
+    /// that were not are kept out of every shading and labelling rule of the report.
+    pub checked: bool,
 }
 
 /// Reef habitat classes on Omega_ar of Guinotte, Buddemeier & Kleypas (2003), "Future coral
 /// reef habitat marginality: temporal and spatial effects of climate change in the Pacific
 /// basin", Coral Reefs 22:551–558: > 4.0 optimal, 3.5–4.0 adequate, 3.0–3.5 marginal, < 3.0
 /// extremely marginal. Status M (from memory, medium confidence; fact sheet §4: widely
-/// reproduced, paper text not seen). Scope: open-water surface Omega_ar, tropical reefs.
+/// reproduced, paper text not seen; a search of the stored public text found only secondary
+/// pages quoting "below 3.0 extremely marginal", not the paper's table), so `checked` is false.
+/// Scope: open-water surface Omega_ar, tropical reefs.
 pub fn guinotte_2003() -> HabitatClasses {
     let b = |name: &str, min: Option<f64>| Band {
         name: name.to_string(),
@@ -37,9 +43,8 @@ pub fn guinotte_2003() -> HabitatClasses {
             b("marginal", Some(3.0)),
             b("extremely marginal", None),
         ],
-        source: "Guinotte, Buddemeier & Kleypas (2003), Coral Reefs 22:551-558 \
-                 (class limits from memory, medium confidence)"
-            .to_string(),
+        source: "Guinotte, Buddemeier & Kleypas (2003), Coral Reefs 22:551-558".to_string(),
+        checked: false,
     }
 }
 
@@ -117,6 +122,7 @@ impl HabitatClasses {
         Ok(HabitatClasses {
             bands,
             source: source.to_string(),
+            checked: true,
         })
     }
 

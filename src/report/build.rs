@@ -13,9 +13,10 @@ use crate::site::LoadedSite;
 use crate::site::baseline::Stats;
 use crate::site::schema::MONTH_NAMES;
 
+mod appendix;
 mod from_outlook;
 
-use from_outlook::{horizons, pathway_list, threshold_classes};
+use from_outlook::{horizons, pathway_list, reader_text, threshold_classes};
 
 /// Per season while counting coverage: solved samples, years, first and last date.
 type SeasonTally = (usize, BTreeSet<i32>, Option<String>, Option<String>);
@@ -67,8 +68,12 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
 
     let mut sites = Vec::with_capacity(runs.len());
     let mut inputs = Vec::new();
+    // Site files are named relative to the first site file's folder (as in the command line),
+    // every other input relative to its own site file (as written there).
+    let first_folder = folder_of(&first.loaded.path);
     for run in runs {
         sites.push(site_report(run, &horizons, opts.appendix)?);
+        let folder = folder_of(&run.loaded.path);
         let logger = run.outlook.heat.as_ref().and_then(|h| match &h.source {
             crate::site::temperature::ThermalSource::Logger { path, .. } => Some(path),
             crate::site::temperature::ThermalSource::SensorRecords { .. } => None,
@@ -81,8 +86,9 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
             } else {
                 "records"
             };
-            let f = InputFile::hash(role, path)
+            let mut f = InputFile::hash(role, path)
                 .map_err(|e| format!("{}: cannot read for its checksum: {e}", path.display()))?;
+            f.path = shown_path(if i == 0 { first_folder } else { folder }, path);
             inputs.push(f);
         }
     }
@@ -92,25 +98,35 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
         setting("Ensemble members", settings.members.to_string()),
         setting("Seed", settings.seed.to_string()),
         setting("Disequilibrium", settings.disequilibrium.clone()),
-        setting(
-            "Warming",
-            if settings.warming { "on" } else { "off" }.to_string(),
-        ),
+        setting("Warming", from_outlook::warming_text(first.outlook)),
         setting(
             "Constant uncertainties",
             settings.constants_uncertainty.clone(),
         ),
         setting(
             "Measurement uncertainties",
-            settings.measurement_uncertainty.clone(),
+            measurement_text(first.loaded, &settings.measurement_uncertainty),
         ),
         setting("Record variability", settings.record_variability.clone()),
     ];
+    // The outlook's texts in the report's symbols and units (as under Methods).
+    for s in &mut repro_settings {
+        s.value = reader_text(&s.value);
+    }
     for run in runs {
-        let m = &run.loaded.methods;
+        // The selectable fits by their citations (the site file's identifiers are not words
+        // for readers).
+        let chosen: Vec<String> = run
+            .loaded
+            .methods
+            .citations()
+            .into_iter()
+            .filter(|(quantity, _)| ["K1, K2", "Total boron", "KF"].contains(&quantity.as_str()))
+            .map(|(quantity, citation)| format!("{quantity} {citation}"))
+            .collect();
         repro_settings.push(setting(
             &format!("Constant set ({})", run.loaded.site.site.name),
-            format!("K1/K2 {}, boron {}, KF {}", m.k1k2, m.boron, m.kf),
+            chosen.join("; "),
         ));
     }
 
@@ -164,7 +180,43 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
             ensemble_members: settings.members,
         },
         include_appendix: opts.appendix,
+        data_out: None,
     })
+}
+
+/// The measurement-uncertainty setting in the report's words, saying so when the site uses the
+/// built-in pH or pCO2 uncertainty (values recalled, not checked against a published source).
+fn measurement_text(loaded: &LoadedSite, outlook_text: &str) -> String {
+    let given = &loaded.site.uncertainty;
+    let built_in = crate::site::schema::UncertaintySpec::default();
+    let mut unchecked = Vec::new();
+    if (given.ph - built_in.ph).abs() < 1e-12 {
+        unchecked.push(format!("pH uncertainty of {}", built_in.ph));
+    }
+    if (given.pco2_pct - built_in.pco2_pct).abs() < 1e-12 {
+        unchecked.push(format!("pCO₂/fCO₂ uncertainty of {} %", built_in.pco2_pct));
+    }
+    let text = reader_text(outlook_text);
+    if unchecked.is_empty() {
+        text
+    } else {
+        format!(
+            "{text}. The built-in {} were not checked against a published source.",
+            unchecked.join(" and ")
+        )
+    }
+}
+
+/// The folder of a site file ("." for a bare file name).
+fn folder_of(site: &Path) -> &Path {
+    site.parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."))
+}
+
+/// A file as the report names it: relative to `folder`, never with a folder of this machine.
+fn shown_path(folder: &Path, path: &Path) -> String {
+    crate::fsio::relative_to(folder, path).display().to_string()
 }
 
 fn setting(name: &str, value: String) -> Setting {
@@ -223,6 +275,8 @@ fn months_text(months: &[u32]) -> String {
 /// (`LoadedSite::qc`) group by severity, kind and field, so a long sensor series gives one
 /// line per kind of finding.
 fn grouped_findings(loaded: &LoadedSite) -> Vec<QcFinding> {
+    let folder = folder_of(&loaded.path);
+    let display_path = |p: &Path| shown_path(folder, p);
     struct Group {
         key: String,
         level: QcLevel,
@@ -356,10 +410,6 @@ fn line_ranges(lines: &[usize]) -> String {
     format!("{}{more}", shown.join(", "))
 }
 
-fn display_path(p: &Path) -> String {
-    p.display().to_string()
-}
-
 fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<SiteReport, String> {
     let loaded = run.loaded;
     let outlook = run.outlook;
@@ -406,7 +456,7 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
     let local_scenarios = from_outlook::local_scenarios(outlook, limiting, horizons);
     let methods = methods(loaded, outlook, &absolute_notes);
     let samples = if appendix {
-        sample_rows(loaded)
+        appendix::sample_rows(loaded)
     } else {
         Vec::new()
     };
@@ -438,6 +488,7 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
         calcification,
         local_scenarios,
         methods,
+        record_files: appendix::record_files(loaded),
         samples,
     })
 }
@@ -484,7 +535,7 @@ fn coverage(loaded: &LoadedSite) -> Coverage {
         record_files: loaded
             .records
             .iter()
-            .map(|r| display_path(&r.path))
+            .map(|r| shown_path(folder_of(&loaded.path), &r.path))
             .collect(),
         n_records: loaded.records.iter().map(|r| r.rows).sum(),
         n_used: loaded.samples.iter().filter(|s| s.state.is_some()).count(),
@@ -567,64 +618,18 @@ fn methods(loaded: &LoadedSite, outlook: &Outlook, absolute_notes: &[String]) ->
     notes.extend(from_outlook::notes(outlook, absolute_notes));
     Methods {
         chemistry,
-        projection: from_outlook::settings(outlook),
+        projection: from_outlook::settings(outlook)
+            .into_iter()
+            .map(|s| match s.name.as_str() {
+                "Measurement uncertainties" => setting(
+                    &s.name,
+                    measurement_text(loaded, &outlook.settings.measurement_uncertainty),
+                ),
+                _ => s,
+            })
+            .collect(),
         notes,
     }
-}
-
-/// Every sample for the chemistry appendix.
-fn sample_rows(loaded: &LoadedSite) -> Vec<SampleRow> {
-    loaded
-        .samples
-        .iter()
-        .map(|s| {
-            let st = s.state.as_ref();
-            let mut measured = Vec::new();
-            // Names as documented on `SampleRow::measured`.
-            for (name, v) in [
-                ("ta", s.measured.ta()),
-                ("dic", s.measured.dic()),
-                ("ph_t", s.measured.ph_t()),
-                ("pco2", s.measured.pco2()),
-                ("fco2", s.measured.fco2()),
-            ] {
-                if v.is_some() {
-                    measured.push(name.to_string());
-                }
-            }
-            let mut flags: Vec<String> = s.flags.labels().iter().map(|l| l.to_string()).collect();
-            if s.ta_estimated {
-                flags.push("TA from TA–S fit".to_string());
-            }
-            SampleRow {
-                file: s
-                    .source_file
-                    .file_name()
-                    .map(|f| f.to_string_lossy().into_owned())
-                    .unwrap_or_default(),
-                row: s.line as u64,
-                date: s.time.format("%Y-%m-%d %H:%M").to_string(),
-                station: s.station.to_string(),
-                season: loaded
-                    .seasons
-                    .get(s.season)
-                    .map(|x| x.name.clone())
-                    .unwrap_or_default(),
-                temp_c: s.temp_c,
-                salinity: s.salinity,
-                pressure_dbar: s.pressure_dbar,
-                ta: st.map(|x| x.ta),
-                dic: st.map(|x| x.dic),
-                ph_t: st.map(|x| x.ph_t),
-                pco2: st.map(|x| x.pco2),
-                omega_ar: st.map(|x| x.omega_ar),
-                omega_ca: st.map(|x| x.omega_ca),
-                measured,
-                flags,
-                used: s.is_used(),
-            }
-        })
-        .collect()
 }
 
 #[cfg(test)]

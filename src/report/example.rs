@@ -98,6 +98,8 @@ pub fn example_model(n_sites: usize) -> ReportModel {
                 "extremely marginal".to_string(),
             ],
             citation: "Guinotte, Buddemeier & Kleypas (2003), Coral Reefs 22:551–558".to_string(),
+            // The example shows shaded classes, as a site's own checked [thresholds] would.
+            checked: true,
         },
         horizons: vec![2030, 2050, 2100],
         pathways,
@@ -128,6 +130,7 @@ pub fn example_model(n_sites: usize) -> ReportModel {
             ensemble_members: 1000,
         },
         include_appendix: true,
+        data_out: None,
     }
 }
 
@@ -196,6 +199,11 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
             }],
         }],
         methods: example_methods(),
+        record_files: vec![RecordFile {
+            path: "examples/records.csv".to_string(),
+            sensor: false,
+            conversions: vec![RowFlag::DepthAsPressure],
+        }],
         samples: example_samples(),
     };
     let season = site.limiting_season().unwrap_or("Winter").to_string();
@@ -308,9 +316,9 @@ fn example_samples() -> Vec<SampleRow> {
             omega_ca: Some(5.7 - r as f64 * 0.015),
             measured: vec!["ta".into(), "dic".into()],
             flags: if r == 16 {
-                vec!["excluded: pair mismatch".into()]
+                vec![RowFlag::Inconsistent, RowFlag::NotUsed]
             } else {
-                Vec::new()
+                vec![RowFlag::DepthAsPressure]
             },
             used: r != 16,
         })

@@ -147,6 +147,7 @@ mod tests {
             levels: vec![4.0, 3.5, 3.0],
             labels: vec![String::new(); 4],
             citation: String::new(),
+            checked: true,
         };
         let texts: Vec<String> = (0..4).map(|k| class_range_text(&classes, k)).collect();
         assert_eq!(texts, ["≥ 4.0", "3.5–4.0", "3.0–3.5", "< 3.0"]);

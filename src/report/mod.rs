@@ -37,7 +37,7 @@ pub(crate) mod example;
 
 pub use error::ReportError;
 pub use model::*;
-pub use output::{timestamp_from_env, write_atomic, write_data_json};
+pub use output::{data_json_bytes, timestamp_from_env, write_atomic, write_data_json};
 #[cfg(feature = "pdf")]
 pub use pdf::{RenderOptions, Rendered, render, write_pdf};
 pub use templates::dump as dump_templates;

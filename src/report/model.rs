@@ -47,6 +47,19 @@ pub struct ReportModel {
     pub reproducibility: Reproducibility,
     /// Whether to add the per-sample chemistry appendix.
     pub include_appendix: bool,
+    /// The `--data-out` file, named in the appendix with its digest. Set by whoever writes it
+    /// (after serialising the model, so the file cannot contain its own digest).
+    #[serde(skip)]
+    pub data_out: Option<OutputFile>,
+}
+
+/// An output file written beside the report: its name and SHA-256.
+#[derive(Debug, Clone, Serialize)]
+pub struct OutputFile {
+    /// File name only (no folder of the machine it was written on).
+    pub name: String,
+    /// Lower-case hex SHA-256 of the bytes written.
+    pub sha256: String,
 }
 
 /// Name and version of the tool.
@@ -133,6 +146,9 @@ pub struct ThresholdClasses {
     pub labels: Vec<String>,
     /// Where the levels and labels come from (shown in Methods).
     pub citation: String,
+    /// Whether the levels were checked against their source. Levels that were not are printed
+    /// with a plain-words caution and shade or label no value (see [`ThresholdClasses::shade`]).
+    pub checked: bool,
 }
 
 impl ThresholdClasses {
@@ -147,6 +163,18 @@ impl ThresholdClasses {
                 .take_while(|&&level| omega < level)
                 .count(),
         )
+    }
+
+    /// The class that shades and labels a value printed as `printed` (the value rounded as the
+    /// report prints it, so that one printed number always has one class): `None` for a
+    /// non-finite value, and for every value when the levels were not checked against their
+    /// source.
+    pub fn shade(&self, printed: f64) -> Option<usize> {
+        if self.checked {
+            self.classify(printed)
+        } else {
+            None
+        }
     }
 
     /// Checks the shape: levels finite, positive and strictly descending; one label more than
@@ -215,8 +243,52 @@ pub struct SiteReport {
     pub calcification: Vec<CalcificationOutlook>,
     pub local_scenarios: Vec<LocalScenario>,
     pub methods: Methods,
+    /// The record files with what was done to their values (for the appendix).
+    pub record_files: Vec<RecordFile>,
     /// Every sample for the appendix (only used when the appendix is requested).
     pub samples: Vec<SampleRow>,
+}
+
+/// One record file of a site.
+#[derive(Debug, Clone, Serialize)]
+pub struct RecordFile {
+    /// Path relative to the site file (as written there).
+    pub path: String,
+    /// A sensor series (listed as daily summaries in the appendix) rather than bottle samples.
+    pub sensor: bool,
+    /// The conversions applied to the file's values (each to every row that has the value).
+    pub conversions: Vec<RowFlag>,
+}
+
+/// What happened to a sample's values between the record file and the report: a conversion, an
+/// estimate or a quality-control note (the appendix shows each as a letter with a key).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum RowFlag {
+    /// Depth in m taken as pressure in dbar.
+    DepthAsPressure,
+    /// TA or DIC given in µmol/L, converted to µmol/kg with the TEOS-10 in-situ density.
+    PerLitre,
+    /// TA or DIC given in mmol/kg, multiplied by 1000.
+    MmolPerKg,
+    /// pH converted from the seawater, free or NBS scale to the total scale.
+    PhScale,
+    /// xCO2 (ppm, dry air) converted to pCO2.
+    Xco2,
+    /// TA not measured: estimated from the site's TA–salinity relationship.
+    TaEstimated,
+    /// TA estimated at a salinity outside the range of the bottles it was fitted to.
+    TaFitExtrapolated,
+    /// Solved from pH with pCO2 or fCO2, a poorly conditioned pair.
+    PhCo2Pair,
+    /// Measured and calculated values disagree beyond the tolerance.
+    Inconsistent,
+    /// Brackish water: Ω_ar indicative only.
+    Brackish,
+    /// Salinity below the site's floor: not in the baseline or outlook.
+    BelowSalinityFloor,
+    /// Not used in the baseline or outlook (no usable carbonate pair, or below the floor).
+    NotUsed,
 }
 
 /// Data coverage of a site's records.
@@ -478,8 +550,8 @@ pub struct SampleRow {
     /// Names of the measured parameters (`ta`, `dic`, `ph_t`, `pco2`, `fco2`); the others are
     /// calculated.
     pub measured: Vec<String>,
-    /// QC flags, short text each.
-    pub flags: Vec<String>,
+    /// Conversions, estimates and QC notes of this row, in [`RowFlag`] order.
+    pub flags: Vec<RowFlag>,
     /// Whether the sample was used in the baseline.
     pub used: bool,
 }
@@ -524,11 +596,7 @@ impl InputFile {
             hasher.update(chunk);
             total = total.saturating_add(n as u64);
         }
-        let digest = hasher.finalize();
-        let sha256 = digest
-            .iter()
-            .map(|b| format!("{b:02x}"))
-            .collect::<String>();
+        let sha256 = hex(&hasher.finalize());
         Ok(Self {
             role: role.to_string(),
             path: path.display().to_string(),
@@ -536,6 +604,17 @@ impl InputFile {
             bytes: total,
         })
     }
+}
+
+/// Lower-case hex of a digest.
+pub fn hex(digest: &[u8]) -> String {
+    digest.iter().map(|b| format!("{b:02x}")).collect()
+}
+
+/// Lower-case hex SHA-256 of some bytes.
+pub fn sha256_hex(bytes: &[u8]) -> String {
+    use sha2::{Digest, Sha256};
+    hex(&Sha256::digest(bytes))
 }
 
 impl SiteReport {
@@ -578,6 +657,7 @@ mod tests {
             levels: vec![4.0, 3.5, 3.0],
             labels: vec!["a".into(), "b".into(), "c".into(), "d".into()],
             citation: String::new(),
+            checked: true,
         }
     }
 

@@ -19,13 +19,18 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), ReportError> {
     crate::fsio::write_bytes_atomic(path, bytes).map_err(|e| ReportError::io("write", path, e))
 }
 
-/// Writes the numbers behind the report (the model itself, numbers as numbers; missing or
-/// non-finite values as `null`) as pretty JSON, atomically.
-pub fn write_data_json(model: &ReportModel, path: &Path) -> Result<(), ReportError> {
+/// The numbers behind the report (the model itself, numbers as numbers; missing or
+/// non-finite values as `null`) as pretty JSON: the bytes of the `--data-out` file.
+pub fn data_json_bytes(model: &ReportModel) -> Result<Vec<u8>, ReportError> {
     let mut bytes = serde_json::to_vec_pretty(model)
         .map_err(|e| ReportError::Model(format!("cannot serialise the report data: {e}")))?;
     bytes.push(b'\n');
-    write_atomic(path, &bytes)
+    Ok(bytes)
+}
+
+/// Writes [`data_json_bytes`] atomically.
+pub fn write_data_json(model: &ReportModel, path: &Path) -> Result<(), ReportError> {
+    write_atomic(path, &data_json_bytes(model)?)
 }
 
 /// The report date from `SOURCE_DATE_EPOCH`, if that variable is set (reproducible builds

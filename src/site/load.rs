@@ -259,8 +259,7 @@ impl<'a> Run<'a> {
             );
             return;
         }
-        let has_depth =
-            cols.headers.iter().any(|h| h == "depth_m") || spec.columns.depth_m.is_some();
+        let has_depth = has_depth_column(cols, spec);
         let has_pressure = spec.columns.pressure_dbar.is_some()
             || cols.headers.iter().any(|h| h == "pressure_dbar");
         let (Some(sl), Some(dl)) = (self.samples.get_mut(r.clone()), self.drop.get_mut(r)) else {
@@ -352,7 +351,8 @@ impl<'a> Run<'a> {
             .records
             .iter()
             .zip(&self.res.record_paths)
-            .map(|(r, p)| RecordSummary {
+            .enumerate()
+            .map(|(i, (r, p))| RecordSummary {
                 path: p.clone(),
                 kind: r.kind,
                 rows: 0,
@@ -364,6 +364,7 @@ impl<'a> Run<'a> {
                 rows_per_season: vec![0; self.res.seasons.len()],
                 pairs: BTreeMap::new(),
                 below_salinity_floor: 0,
+                conversions: self.conversions(i, r),
             })
             .collect();
         for (sum, r) in summaries.iter_mut().zip(&self.ranges) {
@@ -388,6 +389,22 @@ impl<'a> Run<'a> {
             }
         }
         summaries
+    }
+
+    /// The conversions applied to record file `i` (as its notes in [`Run::file_notes`] say).
+    fn conversions(&self, i: usize, spec: &schema::RecordSpec) -> super::Conversions {
+        let u = self.units.get(i).copied();
+        let depth = match self.columns.get(i) {
+            Some(Some(cols)) => has_depth_column(cols, spec),
+            _ => false,
+        };
+        super::Conversions {
+            ta: u.map_or(ConcUnit::UmolPerKg, |u| u.ta),
+            dic: u.map_or(ConcUnit::UmolPerKg, |u| u.dic),
+            ph_scale: u.map_or(PhScaleName::Total, |u| u.ph),
+            xco2: u.is_some_and(|u| u.co2 == Co2Kind::Xco2Ppm),
+            depth_as_pressure: depth,
+        }
     }
 
     /// Drops the marked rows, computes the baseline and gathers the site-level findings.
@@ -447,6 +464,11 @@ impl<'a> Run<'a> {
             input_files,
         })
     }
+}
+
+/// Whether a record file gives depths (in m, taken as dbar).
+fn has_depth_column(cols: &Columns, spec: &schema::RecordSpec) -> bool {
+    cols.headers.iter().any(|h| h == "depth_m") || spec.columns.depth_m.is_some()
 }
 
 fn summarise(sum: &mut RecordSummary, smp: &Sample) {

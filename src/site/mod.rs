@@ -145,6 +145,26 @@ pub struct RecordSummary {
     pub pairs: BTreeMap<String, usize>,
     /// Kept rows below the site's salinity floor (not in the baseline or the outlook).
     pub below_salinity_floor: usize,
+    /// The conversions applied to this file's values on reading (not part of `check`'s JSON,
+    /// which gives the units in the site file).
+    #[serde(skip)]
+    pub conversions: Conversions,
+}
+
+/// The conversions a record file's values went through to reach the canonical units; each
+/// applies to every row that has the value.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct Conversions {
+    /// Unit of the file's TA column (µmol/L and mmol/kg are converted to µmol/kg).
+    pub ta: schema::ConcUnit,
+    /// Unit of the file's DIC column.
+    pub dic: schema::ConcUnit,
+    /// Scale of the file's pH column (other scales are converted to the total scale).
+    pub ph_scale: schema::PhScaleName,
+    /// The CO2 column holds xCO2 (ppm, dry air), converted to pCO2.
+    pub xco2: bool,
+    /// Depths in m were taken as pressures in dbar.
+    pub depth_as_pressure: bool,
 }
 
 /// Why a site could not be loaded: site-level diagnostics and typed row findings (errors

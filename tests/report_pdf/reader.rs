@@ -62,8 +62,6 @@ fn command_names_site_files_relative_to_their_folder() {
 }
 
 #[test]
-#[ignore = "the model builder (report/build.rs) still writes input, record and QC paths as \
-            given; enable once it writes them relative to the site file"]
 fn no_folder_of_this_machine_is_printed() {
     let (r, machine_folder) = render_from_elsewhere();
     assert!(
@@ -78,8 +76,6 @@ fn no_folder_of_this_machine_is_printed() {
 }
 
 #[test]
-#[ignore = "the model builder (report/build.rs) still prints method identifiers (constant sets, \
-            relationship ids, the NOAA file name); enable once it writes citations in words"]
 fn no_internal_identifier_is_printed() {
     // Identifiers of the site-file and `project` vocabulary, not words for readers.
     for id in [
@@ -98,8 +94,6 @@ fn no_internal_identifier_is_printed() {
 }
 
 #[test]
-#[ignore = "texts from the site and outlook stages still write umol/kg and CaCO3; enable once \
-            they write µmol/kg and CaCO₃"]
 fn units_and_formulae_are_written_one_way() {
     for (report, what) in [(one(), "one-site"), (comparison(), "comparison")] {
         assert!(!report.has("umol/kg"), "{what}: umol/kg instead of µmol/kg");

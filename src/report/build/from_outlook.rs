@@ -6,8 +6,10 @@ use std::collections::BTreeSet;
 use super::super::model::*;
 use super::SiteRun;
 use crate::outlook::result::{
-    Criterion, CrossingGroup, GroupId, Outlook, QuantileSeries, Quantity, ScenarioId,
+    Criterion, CrossingGroup, GroupId, Note, Outlook, QuantileSeries, Quantity, RelationshipId,
+    ScenarioId,
 };
+use crate::report::fmt;
 
 /// Horizon years shown in the report's tables when the site projects them (the full series
 /// stays in the figures and in `--data-out`).
@@ -28,6 +30,7 @@ pub(super) fn threshold_classes(outlook: &Outlook) -> ThresholdClasses {
             .map(|b| b.name.clone())
             .collect(),
         citation: outlook.classes.source.clone(),
+        checked: outlook.classes.checked,
     }
 }
 
@@ -256,13 +259,11 @@ pub(super) fn calcification(outlook: &Outlook) -> (Vec<CalcificationOutlook>, Ve
                 baseline: None,
                 series,
                 note: Some(format!(
-                    "Gives a {}. {} ({}). Source status: {}. Identifier in site files and in \
-                     the tables of calcisite project: {}.",
+                    "Gives a {}. {} ({}).{}",
                     rel.measures,
-                    formula_text(rel.form_text),
-                    formula_text(rel.scope),
-                    rel.status,
-                    rel.id,
+                    reader_text(rel.form_text),
+                    reader_text(rel.scope),
+                    unchecked_text(rel.unchecked),
                 )),
             }
         })
@@ -331,13 +332,46 @@ pub(super) fn local_scenarios(
         .collect()
 }
 
+/// " Not checked against the original publication: …." for the parts of a source that were
+/// not checked, or nothing.
+fn unchecked_text(parts: &str) -> String {
+    if parts.is_empty() {
+        String::new()
+    } else {
+        format!(" Not checked against the original publication: {parts}.")
+    }
+}
+
+/// The warming setting in words: off, or on with each pathway's sea-surface warming and where
+/// the built-in values come from (their anchors could not be checked against the paper).
+pub(super) fn warming_text(outlook: &Outlook) -> String {
+    if !outlook.settings.warming {
+        return "off".to_string();
+    }
+    let per_pathway: Vec<String> = outlook
+        .pathways
+        .iter()
+        .map(|p| format!("{} {} °C", p.name, fmt::signed(p.warming_2090_c, 2)))
+        .collect();
+    format!(
+        "on: sea-surface warming from 1995–2014 to 2081–2100 of {}, added to the record \
+         temperatures along each pathway's ln CO2 (common practice; a linear ramp for a \
+         pathway without annual CO2 over 1995–2100). The built-in values are \
+         the IPCC AR6 global-mean sea-surface temperature changes for SSP1-2.6 and SSP5-8.5 \
+         (Fox-Kemper et al. 2021, Working Group I chapter 9), not checked against the original \
+         publication, and for other pathways interpolated between them by 2100 CO2 (a rule of \
+         this tool); values given in the site file are the site's own.",
+        per_pathway.join(", ")
+    )
+}
+
 /// The projection settings for the Methods section.
 pub(super) fn settings(outlook: &Outlook) -> Vec<Setting> {
     let st = &outlook.settings;
-    vec![
+    let settings = vec![
         super::setting("Observed CO2", st.observed_co2_source.clone()),
         super::setting("Disequilibrium", st.disequilibrium.clone()),
-        super::setting("Warming", if st.warming { "on" } else { "off" }.to_string()),
+        super::setting("Warming", warming_text(outlook)),
         super::setting(
             "Ensemble",
             format!("{} members, seed {}", st.members, st.seed),
@@ -359,7 +393,14 @@ pub(super) fn settings(outlook: &Outlook) -> Vec<Setting> {
             "Not modelled",
             crate::outlook::output::NOT_MODELLED.to_string(),
         ),
-    ]
+    ];
+    settings
+        .into_iter()
+        .map(|s| Setting {
+            value: reader_text(&s.value),
+            ..s
+        })
+        .collect()
 }
 
 /// The outlook's method notes: the absolute net calcification (when any), then the run's
@@ -377,8 +418,45 @@ pub(super) fn notes(outlook: &Outlook, absolute_notes: &[String]) -> Vec<String>
             absolute_notes.join("; ")
         ));
     }
-    notes.extend(outlook.notes.iter().map(|n| n.to_string()));
+    notes.extend(outlook.notes.iter().map(|n| note_text(outlook, n)));
     notes
+}
+
+/// One of the outlook's notes in the report's words: relationships by their names, symbols
+/// as printed elsewhere in the report.
+fn note_text(outlook: &Outlook, note: &Note) -> String {
+    let name = |id: &RelationshipId| {
+        outlook
+            .relationships
+            .iter()
+            .find(|r| r.rel_id() == *id)
+            .map_or("a calcification relationship", |r| r.name)
+    };
+    match note {
+        Note::RelationshipNotScalable {
+            relationship,
+            group,
+            baseline_omega_ar,
+        } => format!(
+            "{} cannot be scaled for \"{group}\": its present-day Ω_ar of {} gives no positive \
+             calcification rate.",
+            name(relationship),
+            fmt::omega(*baseline_omega_ar)
+        ),
+        Note::BaselineOutsideFit {
+            relationship,
+            group,
+            baseline_omega_ar,
+            baseline_temp_c,
+        } => format!(
+            "{}: the present-day conditions of \"{group}\" (Ω_ar {}, {} °C) lie outside its \
+             fitted range (extrapolation).",
+            name(relationship),
+            fmt::omega(*baseline_omega_ar),
+            fmt::temp(*baseline_temp_c)
+        ),
+        other => reader_text(&other.to_string()),
+    }
 }
 
 /// "Ω_ar 1–5", or "Ω_ar ≥ 1" when the fitted range has no upper end.
@@ -391,9 +469,9 @@ fn omega_range_text((lo, hi): (f64, f64)) -> String {
     }
 }
 
-/// A relationship's formula as plain text from the outlook stage ("G = k x (Omega_ar - 1)")
-/// written with the report's symbols ("G = k × (Ω_ar − 1)").
-fn formula_text(text: &str) -> String {
+/// Plain text from the outlook stage ("G = k x (Omega_ar - 1)", "2 umol/kg") written with
+/// the report's symbols and units ("G = k × (Ω_ar − 1)", "2 µmol/kg").
+pub(super) fn reader_text(text: &str) -> String {
     text.replace("Omega_ar", "Ω_ar")
         .replace("Omega_b", "Ω_b")
         .replace("Omega", "Ω")
@@ -403,6 +481,9 @@ fn formula_text(text: &str) -> String {
         .replace("<=", "≤")
         .replace(">=", "≥")
         .replace("degC", "°C")
+        .replace("umol/kg", "µmol/kg")
+        .replace("uatm", "µatm")
+        .replace("CaCO3", "CaCO₃")
 }
 
 #[cfg(test)]
@@ -414,8 +495,12 @@ mod tests {
         assert_eq!(omega_range_text((1.0, f64::INFINITY)), "Ω_ar ≥ 1");
         assert_eq!(omega_range_text((1.0, 5.0)), "Ω_ar 1–5");
         assert_eq!(
-            formula_text("G = k x (Omega_ar - 1); G = 0 for Omega_ar <= 1, 5-37 degC"),
+            reader_text("G = k x (Omega_ar - 1); G = 0 for Omega_ar <= 1, 5-37 degC"),
             "G = k × (Ω_ar − 1); G = 0 for Ω_ar ≤ 1, 5-37 °C"
+        );
+        assert_eq!(
+            reader_text("TA 2 umol/kg, 1.2 kg CaCO3 m-2"),
+            "TA 2 µmol/kg, 1.2 kg CaCO₃ m-2"
         );
     }
 

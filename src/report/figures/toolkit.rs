@@ -338,12 +338,16 @@ pub(super) fn draw_class_bands(
         if hi <= lo {
             continue;
         }
-        chart
-            .draw_series(std::iter::once(Rectangle::new(
-                [(xr.start, lo), (xr.end, hi)],
-                palette::class_fill(k).filled(),
-            )))
-            .map_err(err)?;
+        // Limits not checked against their source shade nothing (the dashed lines below
+        // still mark them).
+        if classes.checked {
+            chart
+                .draw_series(std::iter::once(Rectangle::new(
+                    [(xr.start, lo), (xr.end, hi)],
+                    palette::class_fill(k).filled(),
+                )))
+                .map_err(err)?;
+        }
         // Label in the right margin, centred on the visible part of the band.
         let label = class_label(classes, k, long);
         let (px, py) = chart.backend_coord(&(xr.end, (lo + hi) / 2.0));

@@ -75,13 +75,9 @@ fn ranking_row(
         .map(|&y| match limiting_omega(site, pathway_id, y) {
             Some(q) => {
                 let mut c = quant_cell(&q, fmt::omega);
-                c["class"] = json!(model.thresholds.classify(q.p50));
-                c["fill"] = json!(
-                    model
-                        .thresholds
-                        .classify(q.p50)
-                        .map(|k| palette::hex(palette::class_fill(k)))
-                );
+                let class = super::omega_class(model, q.p50);
+                c["class"] = json!(class);
+                c["fill"] = json!(class.map(|k| palette::hex(palette::class_fill(k))));
                 c
             }
             None => missing_cell(),

@@ -99,6 +99,7 @@ pub fn build(model: &ReportModel, figures: &ReportFigures, dates: Dates) -> Valu
             "levels": model.thresholds.levels.iter().map(|l| fmt::level(*l)).collect::<Vec<_>>(),
             "classes": classes,
             "citation": model.thresholds.citation,
+            "checked": model.thresholds.checked,
         },
         "horizons": model.horizons.iter().map(|y| y.to_string()).collect::<Vec<_>>(),
         "pathways": pathways,
@@ -107,6 +108,7 @@ pub fn build(model: &ReportModel, figures: &ReportFigures, dates: Dates) -> Valu
         "comparison": comparison,
         "extra_limitations": model.extra_limitations,
         "appendix": model.include_appendix,
+        "appendix_opening": model.include_appendix.then(|| appendix::opening(model)),
         "reproducibility": {
             "command": repro.command,
             "seed": repro.seed.to_string(),
@@ -167,6 +169,14 @@ fn pathway_label<'a>(model: &'a ReportModel, id: &'a str) -> &'a str {
 
 fn fig(f: &Figure) -> Value {
     json!({ "path": f.path(), "alt": f.alt })
+}
+
+/// The class that shades and labels an Ω_ar value: the class of the value as printed
+/// ([`fmt::omega`]), so that a number printed twice never has two classes; none when the class
+/// limits were not checked against their source.
+fn omega_class(model: &ReportModel, omega: f64) -> Option<usize> {
+    let printed: f64 = fmt::omega(omega).replace('\u{2212}', "-").parse().ok()?;
+    model.thresholds.shade(printed)
 }
 
 fn quant_cell(q: &Quantiles, f: fn(f64) -> String) -> Value {
@@ -239,8 +249,32 @@ mod tests {
         assert_eq!(verdict["rows"][0]["cells"][0]["median"], fmt::omega(q.p50));
         assert_eq!(
             verdict["rows"][0]["cells"][0]["class"],
-            json!(model.thresholds.classify(q.p50))
+            json!(omega_class(&model, q.p50))
         );
+    }
+
+    #[test]
+    fn one_printed_value_has_one_class() {
+        // 3.4951 and 3.5049 lie on either side of the 3.5 limit and both print as "3.50": the
+        // class is that of the printed 3.50 (lower bounds inclusive: adequate, index 1) for
+        // both, as a reader comparing the two printed numbers expects.
+        let model = example_model(1);
+        let (below, above) = (3.4951, 3.5049);
+        assert_eq!(fmt::omega(below), "3.50");
+        assert_eq!(fmt::omega(above), "3.50");
+        assert_eq!(
+            model.thresholds.classify(below),
+            Some(2),
+            "unrounded: marginal"
+        );
+        assert_eq!(omega_class(&model, below), Some(1));
+        assert_eq!(omega_class(&model, above), Some(1));
+        // Printed 3.49 stays marginal.
+        assert_eq!(omega_class(&model, 3.494), Some(2));
+        // Limits not checked against their source shade and label nothing.
+        let mut unchecked = model.clone();
+        unchecked.thresholds.checked = false;
+        assert_eq!(omega_class(&unchecked, above), None);
     }
 
     #[test]

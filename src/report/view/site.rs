@@ -4,7 +4,7 @@
 use serde_json::{Value, json};
 
 use super::appendix::sample_files;
-use super::{crossing_text, fig, missing_cell, pathway_label, quant_cell};
+use super::{crossing_text, fig, missing_cell, omega_class, pathway_label, quant_cell};
 use crate::report::figures::{Figure, SiteFigures};
 use crate::report::fmt;
 use crate::report::model::{
@@ -132,7 +132,7 @@ fn projection_rows(model: &ReportModel, site: &SiteReport) -> Vec<Value> {
                 .map(|&y| match series.at(y) {
                     Some(pt) if pt.omega_ar.p50.is_finite() => {
                         let mut c = quant_cell(&pt.omega_ar, fmt::omega);
-                        c["class"] = json!(model.thresholds.classify(pt.omega_ar.p50));
+                        c["class"] = json!(omega_class(model, pt.omega_ar.p50));
                         c["ph"] = json!(pt.ph_t.map(|q| fmt::ph(q.p50)));
                         c
                     }
@@ -308,7 +308,7 @@ fn verdict_view(model: &ReportModel, site: &SiteReport) -> Value {
                 .iter()
                 .map(|&y| match limiting_omega(site, &p.id, y) {
                     Some(q) => {
-                        let class = model.thresholds.classify(q.p50);
+                        let class = omega_class(model, q.p50);
                         let mut c = quant_cell(&q, fmt::omega);
                         c["class"] = json!(class);
                         c["class_label"] =
