@@ -15,6 +15,9 @@
 
 use serde::Serialize;
 
+mod thermal;
+pub use thermal::*;
+
 /// Everything one report (one site or a comparison of several) is made from.
 #[derive(Debug, Clone, Serialize)]
 pub struct ReportModel {
@@ -214,6 +217,8 @@ pub struct SiteReport {
     pub probabilities: Vec<BelowProbability>,
     pub calcification: Vec<CalcificationOutlook>,
     pub local_scenarios: Vec<LocalScenario>,
+    /// Thermal stress from the site's temperature record; `None`: the site has none.
+    pub thermal: Option<ThermalOutlook>,
     pub methods: Methods,
     /// Every sample for the appendix (only used when the appendix is requested).
     pub samples: Vec<SampleRow>,
