@@ -15,6 +15,7 @@ use crate::site::schema::MONTH_NAMES;
 
 mod appendix;
 mod from_outlook;
+mod thermal;
 
 use from_outlook::{horizons, pathway_list, reader_text, threshold_classes};
 
@@ -141,9 +142,9 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
     ];
     if !settings.warming {
         extra_limitations.push(
-            "Ocean warming is switched off for these projections: temperatures stay at the \
-             measured values. Warming raises Ω_ar slightly but brings thermal stress, which is \
-             not assessed here."
+            "Ocean warming is switched off for the chemistry projections: temperatures stay at \
+             the measured values. Warming raises Ω_ar slightly; the thermal-stress outlook still \
+             adds each pathway's warming."
                 .to_string(),
         );
     }
@@ -487,6 +488,7 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
         probabilities,
         calcification,
         local_scenarios,
+        thermal: thermal::thermal(outlook),
         methods,
         record_files: appendix::record_files(loaded),
         samples,

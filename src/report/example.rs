@@ -187,6 +187,7 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
         crossings: Vec::new(),
         probabilities: Vec::new(),
         calcification: Vec::new(),
+        thermal: Some(example_thermal(i, pathways, &years)),
         local_scenarios: vec![LocalScenario {
             name: "Alkalinity +50 µmol/kg".to_string(),
             description: "Invented example of a local alkalinity addition.".to_string(),
@@ -211,6 +212,66 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
     site.probabilities = example_probabilities(&site, pathways, &season);
     site.calcification = example_calcification(&site, pathways, &years);
     site
+}
+
+/// An invented thermal outlook: annual maximum DHW rising with the pathway and the year
+/// (steeper at the later sites), three observed years with one hot year.
+fn example_thermal(i: usize, pathways: &[PathwayInfo], years: &[i32]) -> ThermalOutlook {
+    let pathways = pathways
+        .iter()
+        .enumerate()
+        .map(|(k, p)| {
+            let rate = (0.05 + 0.06 * k as f64) * (1.0 + 0.2 * i as f64);
+            let median = |y: i32| rate * f64::from(y - 2024);
+            let onset = years.iter().copied().find(|y| median(*y) >= 10.0);
+            HeatSeries {
+                pathway: p.id.clone(),
+                points: years
+                    .iter()
+                    .map(|&y| HeatPoint {
+                        year: y,
+                        max_dhw: [0.5 * median(y), median(y), 1.6 * median(y) + 1.0],
+                        significant_pct: (12.0 * median(y)).min(100.0),
+                        severe_pct: (6.0 * median(y)).min(100.0),
+                    })
+                    .collect(),
+                severe_most_years: [onset.map(|y| y - 10), onset, onset.map(|y| y + 15)],
+                searched_to: 2100,
+            }
+        })
+        .collect();
+    ThermalOutlook {
+        record: "temperature logger file examples/temperature.csv".to_string(),
+        first_day: "2021-10-01".to_string(),
+        last_day: "2024-12-31".to_string(),
+        mmm_c: 28.4 + 0.1 * i as f64,
+        mmm_source: if i == 0 {
+            MmmSource::Stated {
+                source: "invented example climatology".to_string(),
+                base_period: (1985, 2012),
+            }
+        } else {
+            MmmSource::Record { years: 3 }
+        },
+        allowance_c_per_decade: 0.0,
+        levels: [4.0, 8.0],
+        observed: vec![
+            ObservedDhw {
+                year: 2022,
+                max_dhw: 6.3,
+            },
+            ObservedDhw {
+                year: 2023,
+                max_dhw: 0.0,
+            },
+            ObservedDhw {
+                year: 2024,
+                max_dhw: 1.2,
+            },
+        ],
+        pathways,
+        findings: vec!["gap of 2 day(s) from 2023-06-10 filled by linear interpolation".into()],
+    }
 }
 
 /// Invented per-season statistics around `omega0`.

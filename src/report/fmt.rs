@@ -61,6 +61,16 @@ pub fn micro(x: f64) -> String {
     number(x, 0)
 }
 
+/// Degree Heating Weeks, °C-weeks: one decimal.
+pub fn dhw(x: f64) -> String {
+    number(x, 1)
+}
+
+/// The maximum monthly mean, °C: two decimals (as a stated climatology value is given).
+pub fn mmm(x: f64) -> String {
+    number(x, 2)
+}
+
 /// Pressure, dbar: one decimal.
 pub fn pressure(x: f64) -> String {
     number(x, 1)

@@ -15,6 +15,9 @@
 
 use serde::Serialize;
 
+mod thermal;
+pub use thermal::*;
+
 /// Everything one report (one site or a comparison of several) is made from.
 #[derive(Debug, Clone, Serialize)]
 pub struct ReportModel {
@@ -242,6 +245,8 @@ pub struct SiteReport {
     pub probabilities: Vec<BelowProbability>,
     pub calcification: Vec<CalcificationOutlook>,
     pub local_scenarios: Vec<LocalScenario>,
+    /// Thermal stress from the site's temperature record; `None`: the site has none.
+    pub thermal: Option<ThermalOutlook>,
     pub methods: Methods,
     /// The record files with what was done to their values (for the appendix).
     pub record_files: Vec<RecordFile>,

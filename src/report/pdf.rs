@@ -499,14 +499,24 @@ mod tests {
     }
 
     #[test]
-    fn thermal_stress_is_listed_as_not_shown_and_has_no_table() {
+    fn thermal_stress_has_its_section_and_a_site_without_a_record_says_so() {
         let r = render_example(1);
         let text = text_of(&r.pdf);
-        assert!(text.contains("Thermal stress: Degree Heating Weeks from the site"));
-        assert!(text.contains("not yet shown in this report"), "{text}");
-        // No thermal-stress section or table: the phrase appears once, in the limitations.
-        assert_eq!(text.matches("Thermal stress").count(), 1, "{text}");
-        assert!(!text.contains("DHW"));
+        assert!(!text.contains("not yet shown in this report"), "{text}");
+        assert!(text.contains("Annual maximum DHW per pathway"), "{text}");
+        // The example states an MMM of 28.4 °C (two decimals in the report) with its source.
+        assert!(text.contains("28.40 °C"), "{text}");
+        assert!(text.contains("invented example climatology"), "{text}");
+        let mut model = example_model(1);
+        model.sites[0].thermal = None;
+        let r = render(&model, &RenderOptions::default()).unwrap_or_else(|e| panic!("{e}"));
+        let text = text_of(&r.pdf);
+        assert!(
+            text.contains("This site has no temperature record"),
+            "{text}"
+        );
+        assert!(!text.contains("Annual maximum DHW per pathway"));
+        assert!(text.contains("no temperature record"));
     }
 
     #[test]

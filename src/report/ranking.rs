@@ -1,8 +1,21 @@
 //! Ranking the sites of a comparison: which pathway ranks them, each site's ranking key and the
 //! order. This is analysis on the report model (numbers in, an order out); the view and the
 //! figures only show the order it gives.
+//!
+//! The rule, stated in the report: each site's *first limit* under the ranking pathway is the
+//! earlier of two years, the year the median Ω_ar of its limiting season falls below
+//! [`KEY_OMEGA_LEVEL`] and the year DHW ≥ 8 °C-weeks becomes most years (median onset). A
+//! site whose first limit comes later ranks higher; ties go to the later of the two years,
+//! then to the end-horizon median Ω_ar, then to the present-day seasonal minimum. A site
+//! missing either year (no temperature record, or no crossing of that level) ranks after the
+//! sites that have both, by the same rule on what it has: missing information never lifts a
+//! site.
 
-use super::model::{PathwayInfo, Quantiles, ReportModel, SiteReport};
+use super::model::{CrossingYear, PathwayInfo, Quantiles, ReportModel, SiteReport};
+
+/// The Ω_ar level the first page and the ranking set beside heat stress: 3.0, the lower edge
+/// of the marginal class of Guinotte, Buddemeier & Kleypas (2003), the default classes.
+pub const KEY_OMEGA_LEVEL: f64 = 3.0;
 
 /// Ω_ar quantiles of a site's limiting season under a pathway in a year; `None` when the year is
 /// not projected or its median is not finite.
@@ -10,6 +23,40 @@ pub fn limiting_omega(site: &SiteReport, pathway: &str, year: i32) -> Option<Qua
     let season = site.limiting_season()?;
     let q = site.series(pathway, season)?.at(year)?.omega_ar;
     q.p50.is_finite().then_some(q)
+}
+
+/// The year the median Ω_ar of the site's limiting season first falls below
+/// [`KEY_OMEGA_LEVEL`] under a pathway (the typed crossing); `None` when that level was not
+/// evaluated.
+pub fn chemistry_year(site: &SiteReport, pathway: &str) -> Option<CrossingYear> {
+    let season = site.limiting_season()?;
+    site.crossings
+        .iter()
+        .find(|c| c.pathway == pathway && c.season == season && c.threshold == KEY_OMEGA_LEVEL)
+        .map(|c| c.median)
+}
+
+/// The median year from which DHW ≥ 8 °C-weeks is reached in most years under a pathway
+/// (`NotBy` the last year searched when not within it); `None` without a thermal outlook.
+pub fn heat_year(site: &SiteReport, pathway: &str) -> Option<CrossingYear> {
+    let s = site.thermal.as_ref()?.series(pathway)?;
+    Some(match s.severe_most_years[1] {
+        Some(y) => CrossingYear::Year(y),
+        None => CrossingYear::NotBy(s.searched_to),
+    })
+}
+
+/// A crossing year as an orderable key (see [`when`]).
+type When = (u8, i32);
+
+/// Orders crossing years from the earliest: already below, then by year, then "not by" (all
+/// alike: beyond the projected years).
+fn when(c: CrossingYear) -> When {
+    match c {
+        CrossingYear::AlreadyBelow => (0, 0),
+        CrossingYear::Year(y) => (1, y),
+        CrossingYear::NotBy(_) => (2, 0),
+    }
 }
 
 /// The pathway used to rank sites: the model's choice, else the middle pathway.
@@ -29,15 +76,36 @@ pub fn ranking_pathway(model: &ReportModel) -> Option<&PathwayInfo> {
 pub struct RankEntry {
     /// Index into `model.sites`.
     pub site: usize,
+    /// [`chemistry_year`] under the ranking pathway.
+    pub chemistry: Option<CrossingYear>,
+    /// [`heat_year`] under the ranking pathway.
+    pub heat: Option<CrossingYear>,
     /// Median Ω_ar of the limiting season at the last horizon under the ranking pathway.
     pub end_median: Option<f64>,
     /// Lowest seasonal baseline mean Ω_ar.
     pub now_min: Option<f64>,
 }
 
-/// Ranks the sites: by the median Ω_ar of each site's limiting season in the last horizon
-/// year under the ranking pathway (higher first), ties and missing values broken by the
-/// present-day seasonal minimum, then by the order given.
+impl RankEntry {
+    /// Both years known.
+    fn complete(&self) -> bool {
+        self.chemistry.is_some() && self.heat.is_some()
+    }
+
+    /// The earlier and the later of the known years (`None` when neither is known).
+    fn first_and_second(&self) -> (Option<When>, Option<When>) {
+        let mut known: Vec<When> = [self.chemistry, self.heat]
+            .into_iter()
+            .flatten()
+            .map(when)
+            .collect();
+        known.sort_unstable();
+        (known.first().copied(), known.last().copied())
+    }
+}
+
+/// Ranks the sites by the rule in the module documentation; the order given breaks the last
+/// ties.
 pub fn rank_sites(model: &ReportModel) -> Vec<RankEntry> {
     let pathway = ranking_pathway(model)
         .map(|p| p.id.as_str())
@@ -49,6 +117,8 @@ pub fn rank_sites(model: &ReportModel) -> Vec<RankEntry> {
         .enumerate()
         .map(|(i, s)| RankEntry {
             site: i,
+            chemistry: chemistry_year(s, pathway),
+            heat: heat_year(s, pathway),
             end_median: last
                 .and_then(|y| limiting_omega(s, pathway, y))
                 .map(|q| q.p50),
@@ -62,8 +132,13 @@ pub fn rank_sites(model: &ReportModel) -> Vec<RankEntry> {
         .collect();
     let key = |v: Option<f64>| v.unwrap_or(f64::NEG_INFINITY);
     entries.sort_by(|a, b| {
-        key(b.end_median)
-            .total_cmp(&key(a.end_median))
+        let (a1, a2) = a.first_and_second();
+        let (b1, b2) = b.first_and_second();
+        b.complete()
+            .cmp(&a.complete())
+            .then(b1.cmp(&a1))
+            .then(b2.cmp(&a2))
+            .then(key(b.end_median).total_cmp(&key(a.end_median)))
             .then(key(b.now_min).total_cmp(&key(a.now_min)))
             .then(a.site.cmp(&b.site))
     });
@@ -77,11 +152,14 @@ mod tests {
 
     /// A model of `ends.len()` sites whose limiting season has the given median Ω_ar in the
     /// last horizon year under every pathway (`None`: that year is missing from the series) and
-    /// the given lowest seasonal baseline mean.
+    /// the given lowest seasonal baseline mean; no site has a crossing or a heat year, so the
+    /// first two keys tie.
     fn model_with(ends: &[Option<f64>], now_mins: &[f64]) -> ReportModel {
         let mut model = example_model(ends.len());
         let last = *model.horizons.last().unwrap();
         for ((site, end), now) in model.sites.iter_mut().zip(ends).zip(now_mins) {
+            site.crossings.clear();
+            site.thermal = None;
             // Every season's baseline mean at or above `now`, the first season exactly at it,
             // so that the first season is the limiting one.
             for (k, b) in site.baseline.iter_mut().enumerate() {
@@ -183,5 +261,93 @@ mod tests {
         assert_eq!(order(&m), vec![0, 1]);
         m.ranking_pathway = Some(other);
         assert_eq!(order(&m), vec![1, 0]);
+    }
+
+    /// Sets, under every pathway, the year the limiting season falls below 3.0 and the median
+    /// heat onset of each site (`None`: not computed for that site).
+    fn with_years(model: &mut ReportModel, years: &[(Option<CrossingYear>, Option<Option<i32>>)]) {
+        for (site, (chem, heat)) in model.sites.iter_mut().zip(years) {
+            let season = site.limiting_season().unwrap().to_string();
+            site.crossings.retain(|c| c.threshold != KEY_OMEGA_LEVEL);
+            if let Some(c) = chem {
+                for p in &site.projection {
+                    site.crossings.push(crate::report::model::Crossing {
+                        pathway: p.pathway.clone(),
+                        season: season.clone(),
+                        threshold: KEY_OMEGA_LEVEL,
+                        median: *c,
+                        early: *c,
+                        late: *c,
+                    });
+                }
+            }
+            match heat {
+                Some(onset) => {
+                    let t = site
+                        .thermal
+                        .insert(example_model(1).sites[0].thermal.clone().expect("heat"));
+                    for s in &mut t.pathways {
+                        s.severe_most_years = [*onset, *onset, *onset];
+                        s.searched_to = 2100;
+                    }
+                }
+                None => site.thermal = None,
+            }
+        }
+    }
+
+    #[test]
+    fn the_earlier_limit_decides_and_a_later_first_limit_ranks_higher() {
+        use CrossingYear::{AlreadyBelow, NotBy, Year};
+        // First limits (earlier of chemistry and heat): site 0 min(2070, 2045) = 2045;
+        // site 1 min(not by 2100, 2060) = 2060; site 2 min(2050, not by) = 2050; site 3
+        // already below → earliest. Later first: 1 (2060), 2 (2050), 0 (2045), 3.
+        let mut m = model_with(&[Some(3.0); 4], &[3.0; 4]);
+        with_years(
+            &mut m,
+            &[
+                (Some(Year(2070)), Some(Some(2045))),
+                (Some(NotBy(2100)), Some(Some(2060))),
+                (Some(Year(2050)), Some(None)),
+                (Some(AlreadyBelow), Some(Some(2090))),
+            ],
+        );
+        assert_eq!(order(&m), vec![1, 2, 0, 3]);
+        assert_eq!(rank_sites(&m)[1].heat, Some(NotBy(2100)));
+    }
+
+    #[test]
+    fn equal_first_limits_go_to_the_later_second_then_to_the_end_median() {
+        use CrossingYear::Year;
+        // All first limits 2050 (heat). Second limits: 2080, 2090, 2080 → site 1 first; sites 0
+        // and 2 tie on both years and go by end median (3.1 < 3.4): 2 before 0.
+        let mut m = model_with(&[Some(3.1), Some(3.0), Some(3.4)], &[3.0; 3]);
+        with_years(
+            &mut m,
+            &[
+                (Some(Year(2080)), Some(Some(2050))),
+                (Some(Year(2090)), Some(Some(2050))),
+                (Some(Year(2080)), Some(Some(2050))),
+            ],
+        );
+        assert_eq!(order(&m), vec![1, 2, 0]);
+    }
+
+    #[test]
+    fn a_site_missing_a_year_ranks_after_the_sites_with_both() {
+        use CrossingYear::{NotBy, Year};
+        // Site 0 has no temperature record: its chemistry year alone (not by 2100) would put
+        // it first, but missing information must not lift it; site 1 (first limit 2040) and
+        // site 2 (2055) have both years: 2, 1, 0.
+        let mut m = model_with(&[Some(3.0); 3], &[3.0; 3]);
+        with_years(
+            &mut m,
+            &[
+                (Some(NotBy(2100)), None),
+                (Some(Year(2070)), Some(Some(2040))),
+                (Some(Year(2055)), Some(Some(2060))),
+            ],
+        );
+        assert_eq!(order(&m), vec![2, 1, 0]);
     }
 }

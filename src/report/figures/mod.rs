@@ -17,6 +17,7 @@ mod fan;
 mod overview;
 mod scales;
 mod seasonal;
+mod thermal;
 mod toolkit;
 
 pub use calcification::{calcification_chart, calcification_legend};
@@ -24,6 +25,7 @@ pub use comparison::{SITES_PER_COMPARISON_CHART, comparison_charts, comparison_k
 pub use fan::fan_chart;
 pub use overview::outlook_overview;
 pub use seasonal::seasonal_cycle;
+pub use thermal::heat_chart;
 
 use super::model::ReportModel;
 
@@ -130,6 +132,8 @@ pub struct SiteFigures {
     pub calcification: Vec<Figure>,
     /// The pathway legend shared by the calcification charts.
     pub calcification_legend: Option<Figure>,
+    /// Annual maximum DHW per pathway (sites with a temperature record).
+    pub heat: Option<Figure>,
 }
 
 /// All figures of a report.
@@ -154,6 +158,7 @@ impl ReportFigures {
             out.extend(s.fans.iter().map(|(_, f)| f));
             out.extend(s.calcification.iter());
             out.extend(s.calcification_legend.iter());
+            out.extend(s.heat.iter());
         }
         out.extend(self.comparison.iter());
         out.extend(self.comparison_key.iter());
@@ -188,6 +193,7 @@ pub fn build_all(model: &ReportModel) -> FigResult<ReportFigures> {
         if !sf.calcification.is_empty() {
             sf.calcification_legend = calcification_legend(model, site, &prefix)?;
         }
+        sf.heat = heat_chart(model, site, &prefix)?;
         figs.sites.push(sf);
     }
     if model.sites.len() > 1 {

@@ -3,6 +3,7 @@
 
 use serde_json::{Value, json};
 
+use super::thermal::{heat_text, key_level, key_years};
 use super::{crossing_text, fig, missing_cell, quant_cell};
 use crate::report::figures::ReportFigures;
 use crate::report::fmt;
@@ -31,12 +32,23 @@ pub(super) fn comparison_view(model: &ReportModel, figures: &ReportFigures) -> V
         .map(|(rank, e)| ranking_row(model, rank, e, pathway_id, first_calc_name.as_deref()))
         .collect();
     let (crossing_rows, crossing_groups) = crossing_tables(model, &ranked);
+    let level = key_level();
     let criteria = vec![
         format!(
-            "Order: median Ω_ar of each site's limiting season (the season with the lowest \
-             present-day mean) in {last} under {pathway_name}; higher ranks first."
+            "Order: each site's first limit under {pathway_name}, the earlier of two years: the \
+             year the median Ω_ar of its limiting season (the season with the lowest present-day \
+             mean) falls below {level}, and the year DHW ≥ 8 °C-weeks is reached in most years \
+             (median); the later the first limit, the higher the rank. Chemistry and heat count \
+             alike: whichever limits a site first decides."
         ),
-        "Ties: the present-day seasonal minimum of the mean Ω_ar (higher first).".to_string(),
+        format!(
+            "Ties: the later of the two years, then the median Ω_ar of the limiting season in \
+             {last} under {pathway_name} (higher first), then the present-day seasonal minimum \
+             of the mean Ω_ar."
+        ),
+        "A site missing either year (no temperature record, or no crossing of that level \
+         computed) ranks after the sites with both: missing information never lifts a site."
+            .to_string(),
         format!(
             "Shown for context, not used for the order: the medians at the other horizon years \
              and {}.",
@@ -53,6 +65,10 @@ pub(super) fn comparison_view(model: &ReportModel, figures: &ReportFigures) -> V
         "calc_relationship": first_calc_name,
         "rows": rows,
         "crossings": crossing_rows,
+        "key_years": ranked.iter().map(|e| {
+            let site = &model.sites[e.site];
+            json!({ "site": site.name, "cells": key_years(model, site) })
+        }).collect::<Vec<_>>(),
         "crossing_groups": crossing_groups,
         "figures": figures.comparison.iter().map(fig).collect::<Vec<_>>(),
         "key_figure": figures.comparison_key.as_ref().map(fig),
@@ -90,6 +106,8 @@ fn ranking_row(
         "now": e.now_min.map_or_else(|| fmt::MISSING.to_string(), fmt::omega),
         "horizons": horizon_cells,
         "calc": calc_text(model, site, pathway_id, calc_name),
+        "chemistry": e.chemistry.map_or_else(|| fmt::MISSING.to_string(), crossing_text),
+        "heat": heat_text(e.heat, site.thermal.is_some()),
     })
 }
 

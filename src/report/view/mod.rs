@@ -10,6 +10,7 @@
 mod appendix;
 mod comparison;
 mod site;
+mod thermal;
 
 use serde_json::{Value, json};
 
@@ -102,6 +103,7 @@ pub fn build(model: &ReportModel, figures: &ReportFigures, dates: Dates) -> Valu
             "checked": model.thresholds.checked,
         },
         "horizons": model.horizons.iter().map(|y| y.to_string()).collect::<Vec<_>>(),
+        "key_level": thermal::key_level(),
         "pathways": pathways,
         "projection_settings": shared.iter().map(|s| setting_view(s)).collect::<Vec<_>>(),
         "sites": sites,

@@ -4,6 +4,7 @@
 use serde_json::{Value, json};
 
 use super::appendix::sample_files;
+use super::thermal::{key_years, thermal_view};
 use super::{crossing_text, fig, missing_cell, omega_class, pathway_label, quant_cell};
 use crate::report::figures::{Figure, SiteFigures};
 use crate::report::fmt;
@@ -63,6 +64,8 @@ pub(super) fn site_view(
         "probabilities": probability_rows(model, site),
         "calcification": calcification,
         "scenarios": scenario_views(model, site),
+        "thermal": thermal_view(model, site, figs.heat.as_ref()),
+        "key_years": key_years(model, site),
         "methods": {
             "chemistry": site.methods.chemistry.iter().map(|m| json!({
                 "quantity": m.quantity, "method": m.method, "citation": m.citation,
