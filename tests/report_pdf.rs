@@ -30,10 +30,10 @@ use calcisite::report::{CalcUnit, fmt};
 use serde_json::Value;
 use sha2::{Digest, Sha256};
 
-#[path = "report_pdf/permit.rs"]
-mod permit;
 #[path = "report_pdf/heat.rs"]
 mod heat;
+#[path = "report_pdf/permit.rs"]
+mod permit;
 #[path = "report_pdf/reader.rs"]
 mod reader;
 

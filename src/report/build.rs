@@ -143,8 +143,9 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
     if !settings.warming {
         extra_limitations.push(
             "Ocean warming is switched off for the chemistry projections: temperatures stay at \
-             the measured values. Warming raises Ω_ar slightly; the thermal-stress outlook still \
-             adds each pathway's warming."
+             the measured values. Warming raises Ω_ar (by about +0.2 to +0.3 by 2100 under the \
+             high pathways, half a habitat class), lowers calcification in the \
+             temperature-dependent rate law, and the thermal-stress outlook still adds it."
                 .to_string(),
         );
     }
@@ -443,6 +444,7 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
     let projection = from_outlook::projection(outlook, &season_labels);
     let crossings = from_outlook::crossings(outlook);
     let probabilities = from_outlook::probabilities(outlook);
+    let time_below = from_outlook::time_below(outlook);
     let (calcification, absolute_notes) = from_outlook::calcification(outlook);
     // Local scenarios: the limiting season's median at the table horizons.
     let limiting = baseline
@@ -486,6 +488,7 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
         projection,
         crossings,
         probabilities,
+        time_below,
         calcification,
         local_scenarios,
         thermal: thermal::thermal(outlook),

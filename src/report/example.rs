@@ -186,6 +186,7 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
         projection,
         crossings: Vec::new(),
         probabilities: Vec::new(),
+        time_below: Vec::new(),
         calcification: Vec::new(),
         thermal: Some(example_thermal(i, pathways, &years)),
         local_scenarios: vec![LocalScenario {

@@ -86,6 +86,7 @@ pub fn calc(x: f64, unit: super::model::CalcUnit) -> String {
     match unit {
         super::model::CalcUnit::PercentChange => signed(x, 0),
         super::model::CalcUnit::KgCaco3PerM2Year => number(x, 2),
+        super::model::CalcUnit::MmolCaco3PerM2Day => number(x, 1),
     }
 }
 

@@ -243,6 +243,8 @@ pub struct SiteReport {
     pub crossings: Vec<Crossing>,
     /// Chance that Ω_ar is below each level (optional; shown with the crossing years).
     pub probabilities: Vec<BelowProbability>,
+    /// Share of time below each level (variability of the water, not uncertainty).
+    pub time_below: Vec<TimeBelow>,
     pub calcification: Vec<CalcificationOutlook>,
     pub local_scenarios: Vec<LocalScenario>,
     /// Thermal stress from the site's temperature record; `None`: the site has none.
@@ -435,6 +437,17 @@ pub struct Crossing {
     pub late: CrossingYear,
 }
 
+/// The time-weighted share of a season's records below a level: as sampled (`pathway` and
+/// `year` `None`) or with each record projected on its own.
+#[derive(Debug, Clone, Serialize)]
+pub struct TimeBelow {
+    pub pathway: Option<String>,
+    pub year: Option<i32>,
+    pub season: String,
+    pub threshold: f64,
+    pub percent: f64,
+}
+
 /// The share of ensemble members below a level in one year.
 #[derive(Debug, Clone, Serialize)]
 pub struct BelowProbability {
@@ -455,6 +468,9 @@ pub enum CalcUnit {
     PercentChange,
     /// Net calcification, kg CaCO3 m⁻² yr⁻¹.
     KgCaco3PerM2Year,
+    /// Reef-community net ecosystem calcification, mmol CaCO3 m⁻² d⁻¹ (negative: net
+    /// dissolution).
+    MmolCaco3PerM2Day,
 }
 
 /// Calcification outlook from one published relationship.

@@ -133,6 +133,14 @@ fn first_page_sets_chemistry_and_heat_years_per_pathway_as_project_gives_them() 
         column(&c, "threshold"),
     );
     let (cy, cm) = (column(&c, "first_year_p50"), column(&c, "met_at_baseline"));
+    let (c05, c95) = (column(&c, "first_year_p05"), column(&c, "first_year_p95"));
+    // Members below the level as sampled cross in the latest sampling year: "now".
+    let sampled = proj["seasons"]
+        .as_array()
+        .and_then(|g| g.iter().find(|g| g["label"] == season.as_str()))
+        .and_then(|g| g["sample_year_max"].as_i64())
+        .expect("the limiting season's latest sampling year")
+        .to_string();
     let onsets: Vec<&Vec<String>> = heat.iter().filter(|r| r[kind] == "onset").collect();
     assert_eq!(
         onsets.len(),
@@ -155,20 +163,38 @@ fn first_page_sets_chemistry_and_heat_years_per_pathway_as_project_gives_them() 
             .iter()
             .find(|r| &r[cp] == name && r[cs] == season && r[ct] == "3.00")
             .unwrap_or_else(|| panic!("no 3.0 crossing for {name} {season}"));
-        chem_row.push(if x[cm] == "true" {
+        let median = if x[cm] == "true" {
             "already below".to_string()
         } else if x[cy].is_empty() {
             format!("not by {last}")
         } else {
             x[cy].clone()
+        };
+        // The range of 90 % of members: from the 5 % to the 95 % member's year.
+        let early = match x[c05].as_str() {
+            "" => format!("after {last}"),
+            y if y <= sampled.as_str() => "now".to_string(),
+            y => y.to_string(),
+        };
+        let late = match x[c95].as_str() {
+            "" => format!("after {last}"),
+            y if y <= sampled.as_str() => "now".to_string(),
+            y => y.to_string(),
+        };
+        let same = |e: &str| {
+            e == median
+                || (median == "already below" && e == "now")
+                || median == format!("not by {last}") && e == format!("after {last}")
+        };
+        chem_row.push(if same(&early) && same(&late) {
+            median
+        } else {
+            format!("{median} ({early}–{late})")
         });
     }
     for (what, row) in [
         ("header", format!("First year {}", names.join(" "))),
-        (
-            "chemistry row",
-            format!("of the limiting season below 3.0 {}", chem_row.join(" ")),
-        ),
+        ("chemistry row", format!("below 3.0 {}", chem_row.join(" "))),
         (
             "heat row",
             format!("DHW ≥ 8 °C-weeks in most years {}", heat_row.join(" ")),

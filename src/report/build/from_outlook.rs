@@ -145,8 +145,6 @@ pub(super) fn crossings(outlook: &Outlook) -> Vec<Crossing> {
         .last()
         .copied()
         .unwrap_or(2100);
-    let crossing_year =
-        |y: Option<i32>| y.map_or(CrossingYear::NotBy(last_year), CrossingYear::Year);
     outlook
         .crossings
         .iter()
@@ -161,23 +159,45 @@ pub(super) fn crossings(outlook: &Outlook) -> Vec<Crossing> {
             let CrossingGroup::Group(g @ GroupId::Season(_)) = c.group else {
                 return None;
             };
-            let already = c.met_at_baseline;
+            // Members below the level as sampled cross in the latest sampling year.
+            let sampled = outlook.group(g).map_or(i32::MIN, |i| i.sample_year_max);
+            let crossing_year = |y: Option<i32>| match y {
+                None => CrossingYear::NotBy(last_year),
+                Some(y) if y <= sampled => CrossingYear::AlreadyBelow,
+                Some(y) => CrossingYear::Year(y),
+            };
             Some(Crossing {
                 pathway: outlook.pathway(c.pathway)?.name.clone(),
                 season: outlook.group_label(g).to_string(),
                 threshold: threshold_omega_ar,
-                median: if already {
+                median: if c.met_at_baseline {
                     CrossingYear::AlreadyBelow
                 } else {
                     crossing_year(c.first_year.p50)
                 },
-                early: if already {
-                    CrossingYear::AlreadyBelow
-                } else {
-                    crossing_year(c.first_year.p05)
-                },
+                early: crossing_year(c.first_year.p05),
                 late: crossing_year(c.first_year.p95),
             })
+        })
+        .collect()
+}
+
+/// Share of time below each threshold per season: as sampled, then per pathway and year
+/// (base case).
+pub(super) fn time_below(outlook: &Outlook) -> Vec<TimeBelow> {
+    outlook
+        .time_below
+        .iter()
+        .filter(|t| t.scenario == ScenarioId::Base && matches!(t.group, GroupId::Season(_)))
+        .map(|t| TimeBelow {
+            pathway: t
+                .pathway
+                .and_then(|p| outlook.pathway(p))
+                .map(|p| p.name.clone()),
+            year: t.year,
+            season: outlook.group_label(t.group).to_string(),
+            threshold: t.threshold_omega_ar,
+            percent: t.pct_time_below,
         })
         .collect()
 }
@@ -268,7 +288,108 @@ pub(super) fn calcification(outlook: &Outlook) -> (Vec<CalcificationOutlook>, Ve
             }
         })
         .collect();
+    let mut list = list;
+    list.extend(nec_outlooks(outlook));
     (list, absolute_notes)
+}
+
+/// Reef-community NEC per field relationship that gives a value at the site (over all
+/// records, base case), with what it is built from, whether it is closest to the site's
+/// habitat, and the first year of net dissolution per pathway in the limiting season.
+fn nec_outlooks(outlook: &Outlook) -> Vec<CalcificationOutlook> {
+    let base = ScenarioId::Base;
+    let nec = &outlook.nec;
+    outlook
+        .quantities
+        .iter()
+        .filter_map(|q| match q {
+            Quantity::Nec(id) => Some(*id),
+            _ => None,
+        })
+        .filter_map(|id| {
+            let rel = nec.relationships.iter().find(|r| r.id == id.as_str())?;
+            let series = outlook
+                .pathway_ids()
+                .map(|(pid, p)| CalcSeries {
+                    pathway: p.name.clone(),
+                    points: outlook
+                        .series(pid, base, GroupId::Aggregate, Quantity::Nec(id))
+                        .map(|s| {
+                            s.points
+                                .iter()
+                                .map(|pt| CalcPoint {
+                                    year: pt.year,
+                                    value: quantiles(&pt.q),
+                                    extrapolated: pt.outside_fit_pct.is_some_and(|x| x > 0.0),
+                                })
+                                .collect()
+                        })
+                        .unwrap_or_default(),
+                })
+                .collect();
+            let dissolution: Vec<String> = outlook
+                .pathway_ids()
+                .filter_map(|(pid, p)| {
+                    let c = outlook.crossings.iter().find(|c| {
+                        c.pathway == pid
+                            && c.scenario == base
+                            && c.group == CrossingGroup::WorstSeason
+                            && matches!(c.criterion, Criterion::NetDissolution { relationship, .. } if relationship == id)
+                    })?;
+                    let year = if c.met_at_baseline {
+                        "already".to_string()
+                    } else {
+                        c.first_year
+                            .p50
+                            .map_or_else(|| "not by the last horizon".to_string(), |y| y.to_string())
+                    };
+                    Some(format!("{} {year}", p.name))
+                })
+                .collect();
+            let closest = if nec.closest.relationship == rel.id {
+                format!(" Closest to this site's habitat: {}.", nec.closest.reason)
+            } else {
+                String::new()
+            };
+            let anchored = match &nec.measured {
+                Some(m) => format!(
+                    " Scaled to pass through the site's measured NEC ({}; {}).",
+                    fmt::number(m.mmol_m2_d, 1),
+                    m.source
+                ),
+                None => String::new(),
+            };
+            let dissolution = if dissolution.is_empty() {
+                String::new()
+            } else {
+                format!(
+                    " First year the limiting season's mean lies where this relationship gives \
+                     net dissolution (median): {}.",
+                    dissolution.join(", ")
+                )
+            };
+            Some(CalcificationOutlook {
+                // "Eyre et al. (2018), reef sediments" → "NEC, reef sediments" (panel titles
+                // hold about 25 characters; the citation is printed beside the table).
+                relationship: format!(
+                    "NEC, {}",
+                    rel.name.split_once(", ").map_or(rel.name, |(_, what)| what)
+                ),
+                citation: rel.citation.to_string(),
+                unit: CalcUnit::MmolCaco3PerM2Day,
+                valid_range: format!("{}; {}", rel.citation, rel.reef_type),
+                baseline: None,
+                series,
+                note: Some(format!(
+                    "Net ecosystem calcification of the reef community, with dissolution. {}.{}{}{}",
+                    rel.construction.trim_end_matches('.'),
+                    anchored,
+                    closest,
+                    dissolution
+                )),
+            })
+        })
+        .collect()
 }
 
 /// Local scenarios: the median Omega_ar of `season` (else all records) at the table

@@ -34,6 +34,7 @@ pub fn calcification_chart(
     let step = match c.unit {
         CalcUnit::PercentChange => 10.0,
         CalcUnit::KgCaco3PerM2Year => 0.5,
+        CalcUnit::MmolCaco3PerM2Day => 10.0,
     };
     let (x0, x1) = year_range(
         series
@@ -43,6 +44,7 @@ pub fn calcification_chart(
     let y_desc = match c.unit {
         CalcUnit::PercentChange => "Change (%)",
         CalcUnit::KgCaco3PerM2Year => "kg CaCO₃ m⁻² yr⁻¹",
+        CalcUnit::MmolCaco3PerM2Day => "NEC, mmol CaCO₃ m⁻² d⁻¹",
     };
     let w = THIRD_WIDTH_PX;
     let title_h = 20;
@@ -149,6 +151,8 @@ fn reference_line(c: &CalcificationOutlook) -> Option<f64> {
     match c.unit {
         CalcUnit::PercentChange => Some(0.0),
         CalcUnit::KgCaco3PerM2Year => c.baseline.filter(|b| b.is_finite()),
+        // Zero NEC: net dissolution below the line.
+        CalcUnit::MmolCaco3PerM2Day => Some(0.0),
     }
 }
 

@@ -67,6 +67,7 @@ impl Scales {
                 let step = match unit {
                     CalcUnit::PercentChange => 10.0,
                     CalcUnit::KgCaco3PerM2Year => 0.5,
+                    CalcUnit::MmolCaco3PerM2Day => 10.0,
                 };
                 (name, unit, nice_range(lo, hi, step))
             })

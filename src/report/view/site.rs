@@ -66,6 +66,7 @@ pub(super) fn site_view(
         "scenarios": scenario_views(model, site),
         "thermal": thermal_view(model, site, figs.heat.as_ref()),
         "key_years": key_years(model, site),
+        "limits": super::limits::limits_view(model, site),
         "methods": {
             "chemistry": site.methods.chemistry.iter().map(|m| json!({
                 "quantity": m.quantity, "method": m.method, "citation": m.citation,
@@ -358,6 +359,7 @@ fn calc_view(model: &ReportModel, c: &CalcificationOutlook, figure: Option<&Figu
     let unit = match c.unit {
         CalcUnit::PercentChange => "% change from present",
         CalcUnit::KgCaco3PerM2Year => "kg CaCO₃ m⁻² yr⁻¹",
+        CalcUnit::MmolCaco3PerM2Day => "reef NEC in mmol CaCO₃ m⁻² d⁻¹",
     };
     let mut any_extrapolated = false;
     let rows: Vec<Value> = model
