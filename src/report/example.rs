@@ -128,6 +128,7 @@ pub fn example_model(n_sites: usize) -> ReportModel {
             ensemble_members: 1000,
         },
         include_appendix: true,
+        summary_only: Vec::new(),
     }
 }
 

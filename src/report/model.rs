@@ -13,10 +13,10 @@
 //!   so give pathways from the lowest to the highest emissions.
 //! * A missing value is `None` (or a non-finite f64, which is shown as a dash).
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 /// Everything one report (one site or a comparison of several) is made from.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct ReportModel {
     /// Report title, e.g. "Aragonite saturation outlook".
     pub title: String,
@@ -47,17 +47,22 @@ pub struct ReportModel {
     pub reproducibility: Reproducibility,
     /// Whether to add the per-sample chemistry appendix.
     pub include_appendix: bool,
+    /// Indices into `sites` of the sites held as ranking summaries only (a comparison of more
+    /// sites than it shows in detail): they are ranked but get no section or figures of their
+    /// own. Empty: every site is shown in full.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub summary_only: Vec<usize>,
 }
 
 /// Name and version of the tool.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct ToolInfo {
     pub name: String,
     pub version: String,
 }
 
 /// A UTC date and time (the report's date and the PDF's creation timestamp).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
 pub struct ReportTime {
     pub year: i32,
     pub month: u8,
@@ -127,7 +132,7 @@ impl ReportTime {
 
 /// Ω_ar threshold classes: `levels` descending, `labels` one more than `levels`, from the
 /// highest class (Ω_ar ≥ levels\[0\]) to the lowest (Ω_ar < the last level).
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct ThresholdClasses {
     pub levels: Vec<f64>,
     pub labels: Vec<String>,
@@ -174,7 +179,7 @@ impl ThresholdClasses {
 }
 
 /// One atmospheric CO2 pathway.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct PathwayInfo {
     /// Short id used to refer to the pathway, e.g. "ssp2-4.5".
     pub id: String,
@@ -187,7 +192,7 @@ pub struct PathwayInfo {
 }
 
 /// Everything about one site.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct SiteReport {
     /// Short id (from the site file), used in figure file names; any text is accepted.
     pub id: String,
@@ -220,7 +225,7 @@ pub struct SiteReport {
 }
 
 /// Data coverage of a site's records.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Coverage {
     /// Record files as given (display only; hashes are in [`Reproducibility`]).
     pub record_files: Vec<String>,
@@ -235,7 +240,7 @@ pub struct Coverage {
 }
 
 /// Coverage of one season.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct SeasonCoverage {
     pub season: String,
     /// Which months the season spans, e.g. "Dec–Feb".
@@ -249,7 +254,7 @@ pub struct SeasonCoverage {
 }
 
 /// Severity of a quality-control finding.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "lowercase")]
 pub enum QcLevel {
     /// Worth knowing; the records are used.
@@ -261,7 +266,7 @@ pub enum QcLevel {
 }
 
 /// One quality-control finding (grouped: one line per kind of problem).
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct QcFinding {
     pub level: QcLevel,
     /// How many records it concerns.
@@ -272,7 +277,7 @@ pub struct QcFinding {
 }
 
 /// Mean, standard deviation and range of one quantity in one season.
-#[derive(Debug, Clone, Copy, Serialize)]
+#[derive(Debug, Clone, Copy, Serialize, Deserialize)]
 pub struct Stat {
     pub mean: f64,
     /// Sample standard deviation; non-finite (NaN) when there is only one value.
@@ -282,7 +287,7 @@ pub struct Stat {
 }
 
 /// Baseline statistics of one season.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct SeasonBaseline {
     pub season: String,
     /// Records used.
@@ -298,7 +303,7 @@ pub struct SeasonBaseline {
 }
 
 /// The 5, 25, 50, 75 and 95 % quantiles of an ensemble.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct Quantiles {
     pub p05: f64,
     pub p25: f64,
@@ -308,7 +313,7 @@ pub struct Quantiles {
 }
 
 /// The projection ensemble of one pathway, summarised per season.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct PathwayProjection {
     /// [`PathwayInfo::id`].
     pub pathway: String,
@@ -316,7 +321,7 @@ pub struct PathwayProjection {
 }
 
 /// Projected quantiles over the years for one season.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct SeasonSeries {
     pub season: String,
     /// Ascending years; include the horizon years (tables look them up exactly).
@@ -324,7 +329,7 @@ pub struct SeasonSeries {
 }
 
 /// Quantiles in one year.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct ProjectionPoint {
     pub year: i32,
     pub omega_ar: Quantiles,
@@ -332,7 +337,7 @@ pub struct ProjectionPoint {
 }
 
 /// When Ω_ar first falls below a level.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(tag = "kind", content = "year", rename_all = "snake_case")]
 pub enum CrossingYear {
     /// Already below the level at the start of the projection.
@@ -344,7 +349,7 @@ pub enum CrossingYear {
 }
 
 /// Crossing years of one level under one pathway for one season.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Crossing {
     pub pathway: String,
     pub season: String,
@@ -359,7 +364,7 @@ pub struct Crossing {
 }
 
 /// The share of ensemble members below a level in one year.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct BelowProbability {
     pub pathway: String,
     pub year: i32,
@@ -371,7 +376,7 @@ pub struct BelowProbability {
 }
 
 /// Unit of a calcification outlook.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum CalcUnit {
     /// Change relative to the present-day rate, %.
@@ -381,7 +386,7 @@ pub enum CalcUnit {
 }
 
 /// Calcification outlook from one published relationship.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct CalcificationOutlook {
     /// Name of the relationship, e.g. "Chan & Connolly (2013) linear".
     pub relationship: String,
@@ -396,14 +401,14 @@ pub struct CalcificationOutlook {
 }
 
 /// One pathway's calcification series.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct CalcSeries {
     pub pathway: String,
     pub points: Vec<CalcPoint>,
 }
 
 /// Calcification quantiles in one year.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct CalcPoint {
     pub year: i32,
     pub value: Quantiles,
@@ -412,7 +417,7 @@ pub struct CalcPoint {
 }
 
 /// A local scenario (e.g. alkalinity enhancement) evaluated against the pathways.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct LocalScenario {
     pub name: String,
     pub description: String,
@@ -420,7 +425,7 @@ pub struct LocalScenario {
 }
 
 /// One result row of a local scenario.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct ScenarioRow {
     pub pathway: String,
     pub year: i32,
@@ -431,7 +436,7 @@ pub struct ScenarioRow {
 }
 
 /// The methods used for one site.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Methods {
     /// Every constant set and conversion, e.g. quantity "K1, K2", method "Lueker et al. (2000)".
     pub chemistry: Vec<MethodEntry>,
@@ -442,7 +447,7 @@ pub struct Methods {
 }
 
 /// One method with its full citation.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct MethodEntry {
     pub quantity: String,
     pub method: String,
@@ -450,14 +455,14 @@ pub struct MethodEntry {
 }
 
 /// A named setting.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Setting {
     pub name: String,
     pub value: String,
 }
 
 /// One sample for the chemistry appendix.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct SampleRow {
     /// Record file name.
     pub file: String,
@@ -485,7 +490,7 @@ pub struct SampleRow {
 }
 
 /// Everything needed to reproduce the report.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Reproducibility {
     /// Command line, if wanted in the report.
     pub command: Option<String>,
@@ -496,7 +501,7 @@ pub struct Reproducibility {
 }
 
 /// One input file and its hash.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct InputFile {
     /// e.g. "site", "records", "pathway".
     pub role: String,
@@ -535,6 +540,13 @@ impl InputFile {
             sha256,
             bytes: total,
         })
+    }
+}
+
+impl ReportModel {
+    /// Whether site `i` is shown in full (a section and figures of its own), not only ranked.
+    pub fn in_detail(&self, i: usize) -> bool {
+        !self.summary_only.contains(&i)
     }
 }
 
