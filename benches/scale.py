@@ -3,7 +3,9 @@
 
 Usage:  python3 benches/scale.py [--rows 1000000] [--bin target/release/calcisite] [what ...]
   what: solve (1,000,000-row bottle CSV), check (1,000,000-row sensor series),
-        project (one demo site), report (three-site demo comparison), batch (50 sites)
+        project (one demo site), report (three-site demo comparison), batch (50 sites),
+        many (--sites generated invented sites, default 1,000, from benches/make_sites.py:
+        `report --site-list` with the ranking CSV, 10 sites in detail and one PDF per site)
 Build first:  cargo build --release
 Each figure is the median of --repeat runs; CPU is user + sys time; peak memory is the
 child's maximum RSS. Target for solve: at least 1,500,000 rows/s on the 2-core project
@@ -80,6 +82,7 @@ def main():
     ap.add_argument("what", nargs="*", default=["solve", "project", "report"])
     ap.add_argument("--rows", type=int, default=1_000_000)
     ap.add_argument("--repeat", type=int, default=3)
+    ap.add_argument("--sites", type=int, default=1000, help="sites of the `many` case")
     ap.add_argument("--bin", default=os.path.join(os.environ.get("CARGO_TARGET_DIR", os.path.join(ROOT, "target")), "release", "calcisite"))
     a = ap.parse_args()
     if not os.path.exists(a.bin):
@@ -111,6 +114,14 @@ def main():
                     batch.append(os.path.join(d, os.path.basename(sites[i % len(sites)])))
                 cmd = [a.bin, "report", *batch, "-o", os.path.join(tmp, "batch.pdf")]
                 label = "report, 50-site comparison"
+            elif what == "many":
+                gen = os.path.join(tmp, "many")
+                subprocess.run([sys.executable, os.path.join(ROOT, "benches", "make_sites.py"), gen,
+                                "--count", str(a.sites)], check=True, capture_output=True)
+                cmd = [a.bin, "report", "--quiet", "--site-list", os.path.join(gen, "sites.txt"),
+                       "-o", os.path.join(tmp, "many.pdf"), "--ranking-out", os.path.join(tmp, "many.csv"),
+                       "--each-site-pdf", os.path.join(tmp, "many-pdf")]
+                label = f"report, {a.sites:,} generated sites (ranking, 10 in detail, one PDF per site)"
             else:
                 sys.exit(f"unknown bench '{what}'")
             times, cpus, peak = [], [], 0.0

@@ -12,8 +12,13 @@
 
 pub mod check;
 pub mod init;
+#[cfg(feature = "pdf")]
+pub mod many;
+#[cfg(feature = "pdf")]
+pub mod merge;
 pub mod project;
 pub mod report;
+pub mod sites;
 pub mod solve;
 
 /// Writes `text` to standard output. A full or closed standard output is reported on standard

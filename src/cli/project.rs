@@ -76,15 +76,14 @@ impl Progress for Bar {
 pub use crate::pipeline::Overrides as EnsembleOverrides;
 
 /// Loads, checks and projects one site through [`crate::pipeline`], printing its
-/// diagnostics to standard error. `Err` carries the exit status after the message was
-/// printed. The progress bar appears only when `progress` is true and standard error is a
+/// diagnostics to standard error. `Err` carries the exit status and the message printed. The progress bar appears only when `progress` is true and standard error is a
 /// terminal.
 pub fn load_and_project(
     path: &Path,
     overrides: EnsembleOverrides,
     progress: bool,
     all_findings: bool,
-) -> Result<(LoadedSite, Outlook), i32> {
+) -> Result<(LoadedSite, Outlook), SiteFailed> {
     let colour = colour_wanted(false);
     let checked = match pipeline::load_checked(path, overrides) {
         Ok(c) => c,
@@ -127,20 +126,36 @@ pub fn load_and_project(
     }
 }
 
-/// Prints why a site stopped in the pipeline; returns the exit status.
-fn print_failure(path: &Path, failure: &pipeline::Failure, colour: bool) -> i32 {
+/// A site that stopped in the pipeline: the exit status and the message printed for it.
+#[derive(Debug, Clone)]
+pub struct SiteFailed {
+    pub code: i32,
+    /// What was printed, without colour (for a result file of a sharded run).
+    pub message: String,
+}
+
+/// Why a site stopped in the pipeline, as printed.
+fn failure_text(path: &Path, failure: &pipeline::Failure, colour: bool) -> String {
     match failure {
         pipeline::Failure::Load(fail) => {
             let diags = super::check::failure_diagnostics(fail, crate::diag::verbose());
-            eprint!("{}", diags.render(colour));
-            eprintln!(
-                "{}: the site cannot be projected until the errors above are fixed",
+            format!(
+                "{}{}: the site cannot be projected until the errors above are fixed\n",
+                diags.render(colour),
                 path.display()
-            );
+            )
         }
-        pipeline::Failure::Outlook(e) => eprintln!("error: {}: {e}", path.display()),
+        pipeline::Failure::Outlook(e) => format!("error: {}: {e}\n", path.display()),
     }
-    RunStatus::InputError.exit_code()
+}
+
+/// Prints why a site stopped in the pipeline; returns the exit status and the message.
+fn print_failure(path: &Path, failure: &pipeline::Failure, colour: bool) -> SiteFailed {
+    eprint!("{}", failure_text(path, failure, colour));
+    SiteFailed {
+        code: RunStatus::InputError.exit_code(),
+        message: failure_text(path, failure, false),
+    }
 }
 
 /// Runs `project`; returns the exit status.
@@ -153,7 +168,7 @@ pub fn run_project(args: &ProjectArgs) -> i32 {
     };
     let (loaded, outlook) = match load_and_project(&args.site, overrides, true, true) {
         Ok(v) => v,
-        Err(code) => return code,
+        Err(failed) => return failed.code,
     };
     if let Some(p) = out_path
         && fsio::is_same_file_as_any(p, &loaded.input_files)

@@ -16,13 +16,22 @@ Examples:
   calcisite report north.toml lagoon.toml slope.toml -o comparison.pdf
   calcisite report --dump-template my-templates
   calcisite report reef.toml -o reef.pdf --template my-templates
+  calcisite report --site-list sites.txt -o comparison.pdf --detail 10 \\
+      --ranking-out ranking.csv --each-site-pdf site-reports
+  calcisite report --site-list sites.txt --shard 2/8 --results results
+  calcisite report --site-list sites.txt --merge results -o comparison.pdf
 
 The report prints the date of its last sample and the date it was prepared: [report] date
 in the site file, or SOURCE_DATE_EPOCH when set (never the clock), so the same inputs, seed
 and version give a byte-identical file.")]
 pub struct ReportArgs {
     /// Site description files (TOML); two or more give a comparison report
-    #[arg(value_name = "SITE.toml", required_unless_present = "dump_template", num_args = 1..)]
+    #[arg(
+        value_name = "SITE.toml",
+        required_unless_present_any = ["dump_template", "site_list"],
+        conflicts_with = "site_list",
+        num_args = 1..
+    )]
     pub sites: Vec<PathBuf>,
 
     /// The PDF to write (written to a temporary file first, then renamed into place)
@@ -30,9 +39,43 @@ pub struct ReportArgs {
         short,
         long,
         value_name = "FILE.pdf",
-        required_unless_present = "dump_template"
+        required_unless_present_any = ["dump_template", "shard"]
     )]
     pub output: Option<PathBuf>,
+
+    /// Read the sites from FILE: one site file per line, relative to FILE's folder; blank
+    /// lines and lines starting with # are skipped. A site that cannot be read or projected is
+    /// named, left out of the ranking, and the run ends with status 3
+    #[arg(long, value_name = "FILE")]
+    pub site_list: Option<PathBuf>,
+
+    /// How many of the best ranked sites get full sections in a comparison; every site is
+    /// still ranked
+    #[arg(long, value_name = "K", default_value_t = DEFAULT_DETAIL, value_parser = parse_detail)]
+    pub detail: usize,
+
+    /// Also write one report per site into DIR (created if missing), named by list line and
+    /// site, e.g. 0003-north-reef.pdf
+    #[arg(long, value_name = "DIR")]
+    pub each_site_pdf: Option<PathBuf>,
+
+    /// Write every ranked site's numbers to FILE (.csv or .json; may be given twice)
+    #[arg(long, value_name = "FILE")]
+    pub ranking_out: Vec<PathBuf>,
+
+    /// Run only shard K of N of the site list (sites K, K+N, K+2N, ...) and write one result
+    /// file per site into --results DIR, for `--merge`
+    #[arg(long, value_name = "K/N", value_parser = super::sites::parse_shard, requires_all = ["site_list", "results"], conflicts_with_all = ["merge", "output", "data_out", "ranking_out"])]
+    pub shard: Option<super::sites::Shard>,
+
+    /// The folder a shard writes its result files into
+    #[arg(long, value_name = "DIR", requires = "shard")]
+    pub results: Option<PathBuf>,
+
+    /// Build the ranking and the comparison from the result files the shards wrote into DIR
+    /// (with the --site-list and --seed the shards were given)
+    #[arg(long, value_name = "DIR", requires = "site_list")]
+    pub merge: Option<PathBuf>,
 
     /// Add the chemistry appendix: every sample with measured and calculated parameters and
     /// QC flags
@@ -48,7 +91,7 @@ pub struct ReportArgs {
     pub template: Option<PathBuf>,
 
     /// Write the built-in templates into DIR for editing, then stop (never overwrites)
-    #[arg(long, value_name = "DIR", conflicts_with_all = ["sites", "output", "template", "data_out"])]
+    #[arg(long, value_name = "DIR", conflicts_with_all = ["sites", "output", "template", "data_out", "site_list"])]
     pub dump_template: Option<PathBuf>,
 
     /// Write PDF/A-2b (for archival filing) instead of plain PDF
@@ -98,26 +141,34 @@ impl ReportArgs {
             ReportError::Refused("no output file given (use -o FILE.pdf)".to_string())
         })?;
         let options = self.render_options(dated_by_user)?;
-        let json = match &self.data_out {
-            Some(path) => {
-                let bytes = crate::report::data_json_bytes(model)?;
-                model.data_out = Some(crate::report::OutputFile {
-                    name: path
-                        .file_name()
-                        .map(|n| n.to_string_lossy().into_owned())
-                        .unwrap_or_default(),
-                    sha256: crate::report::sha256_hex(&bytes),
-                });
-                Some((path, bytes))
-            }
-            None => None,
-        };
+        let json = self.data_out_bytes(model)?;
         let rendered = crate::report::render(model, &options)?;
         crate::report::write_atomic(out, &rendered.pdf)?;
         if let Some((path, bytes)) = json {
             crate::report::write_atomic(path, &bytes)?;
         }
         Ok(rendered)
+    }
+
+    /// The `--data-out` JSON of `model` (`None` without `--data-out`), its file name and
+    /// SHA-256 recorded in the model first so that the appendix can name it; write the bytes
+    /// only after the PDF succeeded.
+    pub fn data_out_bytes(
+        &self,
+        model: &mut crate::report::ReportModel,
+    ) -> Result<Option<(&Path, Vec<u8>)>, ReportError> {
+        let Some(path) = &self.data_out else {
+            return Ok(None);
+        };
+        let bytes = crate::report::data_json_bytes(model)?;
+        model.data_out = Some(crate::report::OutputFile {
+            name: path
+                .file_name()
+                .map(|n| n.to_string_lossy().into_owned())
+                .unwrap_or_default(),
+            sha256: crate::report::sha256_hex(&bytes),
+        });
+        Ok(Some((path.as_path(), bytes)))
     }
 }
 
@@ -153,81 +204,35 @@ fn run_report_sites(_args: &ReportArgs) -> i32 {
 
 #[cfg(feature = "pdf")]
 fn run_report_sites(args: &ReportArgs) -> i32 {
-    use rayon::prelude::*;
+    super::many::run(args)
+}
 
-    use super::EXIT_INPUT;
-    use super::project::{EnsembleOverrides, load_and_project};
-    use crate::pipeline::{RunStatus, SiteRun, report_model};
-    use crate::report::build::BuildOptions;
-
-    let Some(out) = args.output.as_deref() else {
-        eprintln!("error: no output file given (use -o FILE.pdf)");
-        return EXIT_INPUT;
-    };
-    // Refuse an impossible output path before the sites are projected and typeset.
-    for target in std::iter::once(out).chain(args.data_out.as_deref()) {
-        if let Err(e) = crate::fsio::output_folder(target) {
-            eprintln!("error: cannot write {}: {e}", target.display());
-            return EXIT_INPUT;
-        }
-    }
-    let overrides = EnsembleOverrides {
-        seed: args.seed,
-        members: None,
-        threads: None,
-    };
-    let single = args.sites.len() == 1;
-    let results: Vec<_> = args
-        .sites
-        .par_iter()
-        .map(|site| (site, load_and_project(site, overrides, single, false)))
-        .collect();
-    let mut runs = Vec::with_capacity(results.len());
-    let mut failed = Vec::new();
-    for (site, r) in results {
-        match r {
-            Ok((loaded, outlook)) => runs.push(SiteRun { loaded, outlook }),
-            Err(_) => failed.push(site.display().to_string()),
-        }
-    }
-    if !failed.is_empty() {
-        eprintln!(
-            "error: no report written: {} of {} site(s) failed: {} (see the messages above)",
-            failed.len(),
-            args.sites.len(),
-            failed.join(", ")
-        );
-        return EXIT_INPUT;
-    }
-    let inputs: Vec<PathBuf> = runs
-        .iter()
-        .flat_map(|r| r.loaded.input_files.iter().cloned())
-        .collect();
-    for candidate in std::iter::once(out).chain(args.data_out.as_deref()) {
-        if crate::fsio::is_same_file_as_any(candidate, &inputs) {
-            eprintln!(
-                "error: {} is one of the inputs; choose another output file",
-                candidate.display()
-            );
-            return EXIT_INPUT;
-        }
-    }
-    // The command that reproduces the numbers, run in the first site file's folder: site
-    // paths relative to it, so that no folder of this machine is printed, and output paths
-    // left out, so that the same inputs give the same PDF wherever it is written.
-    let base = args
-        .sites
-        .first()
-        .and_then(|s| s.parent())
-        .filter(|p| !p.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
+/// The command that reproduces a report, run in the folder `base` (the first site file's):
+/// the site paths (or the site list) relative to it, so that no folder of this machine is
+/// printed, and output paths left out, so that the same inputs give the same PDF wherever it
+/// is written.
+pub fn reproduce_command(
+    args: &ReportArgs,
+    base: &Path,
+    sites: &[&Path],
+    list: Option<&Path>,
+) -> String {
     let mut command = String::from("calcisite report");
-    for s in &args.sites {
+    if let Some(list) = list {
+        command.push_str(&format!(
+            " --site-list {}",
+            crate::fsio::relative_to(base, list).display()
+        ));
+    }
+    for s in sites {
         command.push(' ');
         command.push_str(&crate::fsio::relative_to(base, s).display().to_string());
     }
     if let Some(seed) = args.seed {
         command.push_str(&format!(" --seed {seed}"));
+    }
+    if list.is_some() && args.detail != DEFAULT_DETAIL {
+        command.push_str(&format!(" --detail {}", args.detail));
     }
     if args.appendix {
         command.push_str(" --appendix");
@@ -235,40 +240,19 @@ fn run_report_sites(args: &ReportArgs) -> i32 {
     if args.pdfa {
         command.push_str(" --pdfa");
     }
-    let opts = BuildOptions {
-        appendix: args.appendix,
-        command: Some(command),
-    };
-    let mut model = match report_model(&runs, &opts) {
-        Ok(m) => m,
-        Err(e) => {
-            eprintln!("error: {e}");
-            return EXIT_INPUT;
-        }
-    };
-    // The model builder takes the report date from the first site that gives `[report] date`.
-    let dated_by_user = runs.iter().any(|r| r.loaded.site.report.date.is_some());
-    match args.write_outputs(&mut model, dated_by_user) {
-        Ok(rendered) => {
-            if !crate::diag::quiet() {
-                eprint!("{}", rendered.warnings);
-                eprintln!("wrote {} ({} pages)", out.display(), rendered.pages);
-            }
-            // Exit 3 when ensemble members could not be solved at any site (README).
-            let status = RunStatus::worst(runs.iter().map(|r| RunStatus::of_outlook(&r.outlook)));
-            if status == RunStatus::Partial && !crate::diag::quiet() {
-                eprintln!(
-                    "some ensemble member-years could not be solved; see the notes in the report"
-                );
-            }
-            status.exit_code()
-        }
-        Err(e) => {
-            eprintln!("error: {e}");
-            EXIT_INPUT
-        }
+    command
+}
+
+/// `--detail K`: a whole number of at least 1.
+fn parse_detail(s: &str) -> Result<usize, String> {
+    match s.trim().parse::<usize>() {
+        Ok(k) if k >= 1 => Ok(k),
+        _ => Err(format!("{s:?} is not a whole number of at least 1")),
     }
 }
+
+/// Sites shown in full in a comparison unless `--detail` says otherwise.
+pub const DEFAULT_DETAIL: usize = 10;
 
 #[cfg(test)]
 mod tests {

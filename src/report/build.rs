@@ -22,6 +22,10 @@ use from_outlook::{horizons, pathway_list, reader_text, threshold_classes};
 /// Per season while counting coverage: solved samples, years, first and last date.
 type SeasonTally = (usize, BTreeSet<i32>, Option<String>, Option<String>);
 
+/// The title of a comparison of several sites.
+pub const COMPARISON_TITLE: &str =
+    "Candidate reef sites compared: carbonate chemistry feasibility screening";
+
 /// One site ready for the report: what `check` loaded and what `project` computed.
 pub struct SiteRun<'a> {
     pub loaded: &'a LoadedSite,
@@ -48,7 +52,7 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
             )
         })
     } else {
-        "Candidate reef sites compared: carbonate chemistry feasibility screening".to_string()
+        COMPARISON_TITLE.to_string()
     };
     // One site: its region. Several: their common region, if they share one (the site names
     // are listed on the first page anyway).
@@ -183,6 +187,7 @@ pub fn build_model(runs: &[SiteRun<'_>], opts: &BuildOptions) -> Result<ReportMo
         },
         include_appendix: opts.appendix,
         data_out: None,
+        summary_only: Vec::new(),
     })
 }
 

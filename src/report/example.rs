@@ -131,6 +131,7 @@ pub fn example_model(n_sites: usize) -> ReportModel {
         },
         include_appendix: true,
         data_out: None,
+        summary_only: Vec::new(),
     }
 }
 

@@ -20,10 +20,12 @@ pub mod build;
 pub mod error;
 pub mod figures;
 pub mod fmt;
+pub mod many;
 pub mod model;
 pub mod output;
 pub mod palette;
 pub mod ranking;
+pub mod ranking_table;
 pub mod templates;
 pub mod view;
 

@@ -13,13 +13,13 @@
 //!   so give pathways from the lowest to the highest emissions.
 //! * A missing value is `None` (or a non-finite f64, which is shown as a dash).
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 mod thermal;
 pub use thermal::*;
 
 /// Everything one report (one site or a comparison of several) is made from.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct ReportModel {
     /// Report title, e.g. "Aragonite saturation outlook".
     pub title: String,
@@ -54,10 +54,15 @@ pub struct ReportModel {
     /// (after serialising the model, so the file cannot contain its own digest).
     #[serde(skip)]
     pub data_out: Option<OutputFile>,
+    /// Indices into `sites` of the sites held as ranking summaries only (a comparison of more
+    /// sites than it shows in detail): they are ranked but get no section or figures of their
+    /// own. Empty: every site is shown in full.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub summary_only: Vec<usize>,
 }
 
 /// An output file written beside the report: its name and SHA-256.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct OutputFile {
     /// File name only (no folder of the machine it was written on).
     pub name: String,
@@ -66,14 +71,14 @@ pub struct OutputFile {
 }
 
 /// Name and version of the tool.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct ToolInfo {
     pub name: String,
     pub version: String,
 }
 
 /// A UTC date and time (the report's date and the PDF's creation timestamp).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
 pub struct ReportTime {
     pub year: i32,
     pub month: u8,
@@ -143,7 +148,7 @@ impl ReportTime {
 
 /// Ω_ar threshold classes: `levels` descending, `labels` one more than `levels`, from the
 /// highest class (Ω_ar ≥ levels\[0\]) to the lowest (Ω_ar < the last level).
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct ThresholdClasses {
     pub levels: Vec<f64>,
     pub labels: Vec<String>,
@@ -205,7 +210,7 @@ impl ThresholdClasses {
 }
 
 /// One atmospheric CO2 pathway.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct PathwayInfo {
     /// Short id used to refer to the pathway, e.g. "ssp2-4.5".
     pub id: String,
@@ -218,7 +223,7 @@ pub struct PathwayInfo {
 }
 
 /// Everything about one site.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct SiteReport {
     /// Short id (from the site file), used in figure file names; any text is accepted.
     pub id: String,
@@ -257,7 +262,7 @@ pub struct SiteReport {
 }
 
 /// One record file of a site.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct RecordFile {
     /// Path relative to the site file (as written there).
     pub path: String,
@@ -269,7 +274,7 @@ pub struct RecordFile {
 
 /// What happened to a sample's values between the record file and the report: a conversion, an
 /// estimate or a quality-control note (the appendix shows each as a letter with a key).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum RowFlag {
     /// Depth in m taken as pressure in dbar.
@@ -299,7 +304,7 @@ pub enum RowFlag {
 }
 
 /// Data coverage of a site's records.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Coverage {
     /// Record files as given (display only; hashes are in [`Reproducibility`]).
     pub record_files: Vec<String>,
@@ -314,7 +319,7 @@ pub struct Coverage {
 }
 
 /// Coverage of one season.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct SeasonCoverage {
     pub season: String,
     /// Which months the season spans, e.g. "Dec–Feb".
@@ -328,7 +333,7 @@ pub struct SeasonCoverage {
 }
 
 /// Severity of a quality-control finding.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "lowercase")]
 pub enum QcLevel {
     /// Worth knowing; the records are used.
@@ -340,7 +345,7 @@ pub enum QcLevel {
 }
 
 /// One quality-control finding (grouped: one line per kind of problem).
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct QcFinding {
     pub level: QcLevel,
     /// How many records it concerns.
@@ -351,7 +356,7 @@ pub struct QcFinding {
 }
 
 /// Mean, standard deviation and range of one quantity in one season.
-#[derive(Debug, Clone, Copy, Serialize)]
+#[derive(Debug, Clone, Copy, Serialize, Deserialize)]
 pub struct Stat {
     pub mean: f64,
     /// Sample standard deviation; non-finite (NaN) when there is only one value.
@@ -361,7 +366,7 @@ pub struct Stat {
 }
 
 /// Baseline statistics of one season.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct SeasonBaseline {
     pub season: String,
     /// Records used.
@@ -377,7 +382,7 @@ pub struct SeasonBaseline {
 }
 
 /// The 5, 25, 50, 75 and 95 % quantiles of an ensemble.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct Quantiles {
     pub p05: f64,
     pub p25: f64,
@@ -387,7 +392,7 @@ pub struct Quantiles {
 }
 
 /// The projection ensemble of one pathway, summarised per season.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct PathwayProjection {
     /// [`PathwayInfo::id`].
     pub pathway: String,
@@ -395,7 +400,7 @@ pub struct PathwayProjection {
 }
 
 /// Projected quantiles over the years for one season.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct SeasonSeries {
     pub season: String,
     /// Ascending years; include the horizon years (tables look them up exactly).
@@ -403,7 +408,7 @@ pub struct SeasonSeries {
 }
 
 /// Quantiles in one year.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct ProjectionPoint {
     pub year: i32,
     pub omega_ar: Quantiles,
@@ -411,7 +416,7 @@ pub struct ProjectionPoint {
 }
 
 /// When Ω_ar first falls below a level.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(tag = "kind", content = "year", rename_all = "snake_case")]
 pub enum CrossingYear {
     /// Already below the level at the start of the projection.
@@ -423,7 +428,7 @@ pub enum CrossingYear {
 }
 
 /// Crossing years of one level under one pathway for one season.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Crossing {
     pub pathway: String,
     pub season: String,
@@ -439,7 +444,7 @@ pub struct Crossing {
 
 /// The time-weighted share of a season's records below a level: as sampled (`pathway` and
 /// `year` `None`) or with each record projected on its own.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct TimeBelow {
     pub pathway: Option<String>,
     pub year: Option<i32>,
@@ -449,7 +454,7 @@ pub struct TimeBelow {
 }
 
 /// The share of ensemble members below a level in one year.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct BelowProbability {
     pub pathway: String,
     pub year: i32,
@@ -461,7 +466,7 @@ pub struct BelowProbability {
 }
 
 /// Unit of a calcification outlook.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum CalcUnit {
     /// Change relative to the present-day rate, %.
@@ -474,7 +479,7 @@ pub enum CalcUnit {
 }
 
 /// Calcification outlook from one published relationship.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct CalcificationOutlook {
     /// Name of the relationship, e.g. "Chan & Connolly (2013) linear".
     pub relationship: String,
@@ -489,14 +494,14 @@ pub struct CalcificationOutlook {
 }
 
 /// One pathway's calcification series.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct CalcSeries {
     pub pathway: String,
     pub points: Vec<CalcPoint>,
 }
 
 /// Calcification quantiles in one year.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct CalcPoint {
     pub year: i32,
     pub value: Quantiles,
@@ -505,7 +510,7 @@ pub struct CalcPoint {
 }
 
 /// A local scenario (e.g. alkalinity enhancement) evaluated against the pathways.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct LocalScenario {
     pub name: String,
     pub description: String,
@@ -513,7 +518,7 @@ pub struct LocalScenario {
 }
 
 /// One result row of a local scenario.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct ScenarioRow {
     pub pathway: String,
     pub year: i32,
@@ -524,7 +529,7 @@ pub struct ScenarioRow {
 }
 
 /// The methods used for one site.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Methods {
     /// Every constant set and conversion, e.g. quantity "K1, K2", method "Lueker et al. (2000)".
     pub chemistry: Vec<MethodEntry>,
@@ -535,7 +540,7 @@ pub struct Methods {
 }
 
 /// One method with its full citation.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct MethodEntry {
     pub quantity: String,
     pub method: String,
@@ -543,14 +548,14 @@ pub struct MethodEntry {
 }
 
 /// A named setting.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Setting {
     pub name: String,
     pub value: String,
 }
 
 /// One sample for the chemistry appendix.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct SampleRow {
     /// Record file name.
     pub file: String,
@@ -578,7 +583,7 @@ pub struct SampleRow {
 }
 
 /// Everything needed to reproduce the report.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Reproducibility {
     /// Command line, if wanted in the report.
     pub command: Option<String>,
@@ -589,7 +594,7 @@ pub struct Reproducibility {
 }
 
 /// One input file and its hash.
-#[derive(Debug, Clone, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct InputFile {
     /// e.g. "site", "records", "pathway".
     pub role: String,
@@ -636,6 +641,13 @@ pub fn hex(digest: &[u8]) -> String {
 pub fn sha256_hex(bytes: &[u8]) -> String {
     use sha2::{Digest, Sha256};
     hex(&Sha256::digest(bytes))
+}
+
+impl ReportModel {
+    /// Whether site `i` is shown in full (a section and figures of its own), not only ranked.
+    pub fn in_detail(&self, i: usize) -> bool {
+        !self.summary_only.contains(&i)
+    }
 }
 
 impl SiteReport {

@@ -17,11 +17,12 @@ use crate::report::ranking::rank_sites;
 /// Most sites in one comparison chart; more sites are split over several charts.
 pub const SITES_PER_COMPARISON_CHART: usize = 6;
 
-/// Sites in ranking order with their rank (1 = first).
+/// Sites shown in detail, in ranking order with their rank (1 = first).
 fn ranked_sites(model: &ReportModel) -> Vec<(usize, &SiteReport)> {
     rank_sites(model)
         .iter()
         .enumerate()
+        .filter(|(_, e)| model.in_detail(e.site))
         .filter_map(|(rank, e)| model.sites.get(e.site).map(|s| (rank + 1, s)))
         .collect()
 }

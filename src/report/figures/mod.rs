@@ -171,6 +171,11 @@ pub fn build_all(model: &ReportModel) -> FigResult<ReportFigures> {
     let scales = scales::Scales::of(model);
     let mut figs = ReportFigures::default();
     for (i, site) in model.sites.iter().enumerate() {
+        if !model.in_detail(i) {
+            // Ranked only: no figures, but keep the indices of `figs.sites` those of the model.
+            figs.sites.push(SiteFigures::default());
+            continue;
+        }
         let prefix = format!("s{i}");
         let mut sf = SiteFigures {
             seasonal: seasonal_cycle(site, scales.seasonal, &prefix)?,

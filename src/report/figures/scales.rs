@@ -6,7 +6,7 @@ use super::calcification::calc_extent;
 use super::fan::fan_data;
 use super::seasonal::{PANELS, panel_extent};
 use super::toolkit::{nice_range, omega_range};
-use crate::report::model::{CalcUnit, ReportModel};
+use crate::report::model::{CalcUnit, ReportModel, SiteReport};
 
 /// Shared axis ranges of one report.
 #[derive(Debug, Clone)]
@@ -20,12 +20,22 @@ pub(super) struct Scales {
     calcification: Vec<(String, CalcUnit, (f64, f64))>,
 }
 
+/// The sites shown in full: only their figures share these axes.
+fn detailed(model: &ReportModel) -> impl Iterator<Item = &SiteReport> {
+    model
+        .sites
+        .iter()
+        .enumerate()
+        .filter(|(i, _)| model.in_detail(*i))
+        .map(|(_, s)| s)
+}
+
 impl Scales {
     /// The ranges of a report's model.
     pub(super) fn of(model: &ReportModel) -> Self {
         let mut lo = f64::INFINITY;
         let mut hi = f64::NEG_INFINITY;
-        for site in &model.sites {
+        for site in detailed(model) {
             let season = site.limiting_season().unwrap_or_default();
             for p in &model.pathways {
                 if let Some(d) = fan_data(site, &p.id, season) {
@@ -38,9 +48,7 @@ impl Scales {
         }
         let omega = omega_range(lo, hi, &model.thresholds);
         let seasonal = PANELS.map(|spec| {
-            let (lo, hi) = model
-                .sites
-                .iter()
+            let (lo, hi) = detailed(model)
                 .map(|s| panel_extent(&s.baseline, spec))
                 .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), (c, d)| {
                     (a.min(c), b.max(d))
@@ -49,7 +57,7 @@ impl Scales {
         });
         // Relationships are matched by name and unit: the model gives them no other identity.
         let mut calc: Vec<(String, CalcUnit, (f64, f64))> = Vec::new();
-        for c in model.sites.iter().flat_map(|s| &s.calcification) {
+        for c in detailed(model).flat_map(|s| &s.calcification) {
             let Some((lo, hi)) = calc_extent(model, c) else {
                 continue;
             };

@@ -2,10 +2,10 @@
 //! where it came from, the observed annual maximum DHW and its projection per pathway, as
 //! numbers (filled from the outlook stage's `SiteHeat` by `build/thermal.rs`).
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 /// Where the maximum monthly mean (MMM) came from.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(tag = "from", rename_all = "snake_case")]
 pub enum MmmSource {
     /// Stated in the site file, with its source and base period (first and last year).
@@ -18,7 +18,7 @@ pub enum MmmSource {
 }
 
 /// The observed annual maximum DHW of one year of record.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct ObservedDhw {
     pub year: i32,
     /// °C-weeks.
@@ -26,7 +26,7 @@ pub struct ObservedDhw {
 }
 
 /// The projected annual maximum DHW of one horizon year under one pathway.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct HeatPoint {
     pub year: i32,
     /// 5, 50 and 95 % of the annual maximum DHW over members × observed-year patterns,
@@ -39,7 +39,7 @@ pub struct HeatPoint {
 }
 
 /// One pathway's thermal outlook.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct HeatSeries {
     /// [`super::PathwayInfo::id`].
     pub pathway: String,
@@ -52,7 +52,7 @@ pub struct HeatSeries {
 }
 
 /// The thermal-stress outlook of one site.
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct ThermalOutlook {
     /// The temperature record, in words ("temperature logger file …").
     pub record: String,

@@ -58,7 +58,16 @@ pub(super) fn comparison_view(model: &ReportModel, figures: &ReportFigures) -> V
             }
         ),
     ];
+    // A comparison of more sites than it shows in full says so where the site names would be.
+    let detail_note = (!model.summary_only.is_empty()).then(|| {
+        format!(
+            "{} candidate sites, all ranked below; full sections for the {} ranked highest",
+            model.sites.len(),
+            model.sites.len().saturating_sub(model.summary_only.len())
+        )
+    });
     json!({
+        "detail_note": detail_note,
         "pathway": pathway_name,
         "last_horizon": last,
         "criteria": criteria,

@@ -66,6 +66,7 @@ pub fn build(model: &ReportModel, figures: &ReportFigures, dates: Dates) -> Valu
         .sites
         .iter()
         .enumerate()
+        .filter(|(i, _)| model.in_detail(*i))
         .map(|(i, s)| site::site_view(model, s, &shared, figures.sites.get(i).unwrap_or(&empty)))
         .collect();
     let comparison = if model.sites.len() > 1 {
@@ -194,7 +195,8 @@ fn missing_cell() -> Value {
     json!({ "median": fmt::MISSING, "range": "", "iqr": "", "class": Value::Null })
 }
 
-fn crossing_text(c: CrossingYear) -> String {
+/// A crossing year in words: a year, "already below" or "not by" the last year.
+pub(crate) fn crossing_text(c: CrossingYear) -> String {
     match c {
         CrossingYear::AlreadyBelow => "already below".to_string(),
         CrossingYear::Year(y) => y.to_string(),
