@@ -196,9 +196,6 @@ mod tests {
             let expected = format!("{:.3}", e.end_median.unwrap());
             assert_eq!(&row[col], expected);
         }
-        // Medians descend down the table (the ranking's order).
-        let medians: Vec<f64> = rows.iter().map(|r| r[col].parse().unwrap()).collect();
-        assert!(medians.windows(2).all(|w| w[0] >= w[1]));
     }
 
     #[test]

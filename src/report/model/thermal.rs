@@ -46,6 +46,7 @@ pub struct HeatSeries {
     pub points: Vec<HeatPoint>,
     /// The first year in which severe stress is reached in most years: 5, 50 and 95 % over
     /// members; `None`: not within the projected years.
+    #[serde(with = "onset_years")]
     pub severe_most_years: [Option<i32>; 3],
     /// The last year searched for that onset (shown as "not by").
     pub searched_to: i32,
@@ -76,5 +77,36 @@ impl ThermalOutlook {
     /// The series of a pathway.
     pub fn series(&self, pathway: &str) -> Option<&HeatSeries> {
         self.pathways.iter().find(|p| p.pathway == pathway)
+    }
+}
+
+/// `[early, median, late]` onset years as a table with the missing ones left out: TOML (the
+/// shard result files) has no empty value inside an array.
+mod onset_years {
+    use serde::{Deserialize, Deserializer, Serialize, Serializer};
+
+    #[derive(Serialize, Deserialize)]
+    struct Onset {
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        early: Option<i32>,
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        median: Option<i32>,
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        late: Option<i32>,
+    }
+
+    pub fn serialize<S: Serializer>(v: &[Option<i32>; 3], s: S) -> Result<S::Ok, S::Error> {
+        let [early, median, late] = *v;
+        Onset {
+            early,
+            median,
+            late,
+        }
+        .serialize(s)
+    }
+
+    pub fn deserialize<'de, D: Deserializer<'de>>(d: D) -> Result<[Option<i32>; 3], D::Error> {
+        let o = Onset::deserialize(d)?;
+        Ok([o.early, o.median, o.late])
     }
 }
