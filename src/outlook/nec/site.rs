@@ -7,6 +7,9 @@ use super::{
     HabitatChoice, NecModel, NecModelError, NecRelationship, SiteNec, builtin, closest_to_habitat,
 };
 
+/// One member's NEC and its paired change (mmol CaCO3 m⁻² d⁻¹), or why there is none.
+pub type MemberNec = Result<(f64, f64), NecModelError>;
+
 /// The NEC settings of a site.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct NecSettings {
@@ -64,7 +67,7 @@ impl NecSettings {
         &self,
         (omega, temp_c): (f64, f64),
         (omega_present, temp_present): (f64, f64),
-    ) -> Vec<(&'static str, Result<(f64, f64), NecModelError>)> {
+    ) -> Vec<(&'static str, MemberNec)> {
         self.models(omega_present)
             .into_iter()
             .map(|(id, m)| {
