@@ -333,7 +333,7 @@ const SITE_SECTIONS: [&str; 8] = [
     "Seasonal baseline",
     "Projection",
     "Thresholds and crossing years",
-    "First year below each level",
+    "Annex: crossing years by season",
     "Calcification outlook",
 ];
 

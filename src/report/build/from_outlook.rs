@@ -233,25 +233,7 @@ pub(super) fn calcification(outlook: &Outlook) -> (Vec<CalcificationOutlook>, Ve
         .map(|rel| {
             let [change, net] = Quantity::of_relationship(rel.rel_id());
             // Absolute rates exist only when the site gave a measured rate.
-            let series: Vec<CalcSeries> = outlook
-                .pathway_ids()
-                .map(|(pid, p)| CalcSeries {
-                    pathway: p.name.clone(),
-                    points: outlook
-                        .series(pid, base, all, change)
-                        .map(|s| {
-                            s.points
-                                .iter()
-                                .map(|pt| CalcPoint {
-                                    year: pt.year,
-                                    value: quantiles(&pt.q),
-                                    extrapolated: pt.outside_fit_pct.is_some_and(|x| x > 0.0),
-                                })
-                                .collect()
-                        })
-                        .unwrap_or_default(),
-                })
-                .collect();
+            let series = calc_series(outlook, all, change);
             let mut last_year = None;
             let at_last: Vec<String> = outlook
                 .pathway_ids()
@@ -293,6 +275,30 @@ pub(super) fn calcification(outlook: &Outlook) -> (Vec<CalcificationOutlook>, Ve
     (list, absolute_notes)
 }
 
+/// One calcification quantity of `group` per pathway (base case), with its extrapolation
+/// flags.
+fn calc_series(outlook: &Outlook, group: GroupId, q: Quantity) -> Vec<CalcSeries> {
+    outlook
+        .pathway_ids()
+        .map(|(pid, p)| CalcSeries {
+            pathway: p.name.clone(),
+            points: outlook
+                .series(pid, ScenarioId::Base, group, q)
+                .map(|s| {
+                    s.points
+                        .iter()
+                        .map(|pt| CalcPoint {
+                            year: pt.year,
+                            value: quantiles(&pt.q),
+                            extrapolated: pt.outside_fit_pct.is_some_and(|x| x > 0.0),
+                        })
+                        .collect()
+                })
+                .unwrap_or_default(),
+        })
+        .collect()
+}
+
 /// Reef-community NEC per field relationship that gives a value at the site (over all
 /// records, base case), with what it is built from, whether it is closest to the site's
 /// habitat, and the first year of net dissolution per pathway in the limiting season.
@@ -308,25 +314,7 @@ fn nec_outlooks(outlook: &Outlook) -> Vec<CalcificationOutlook> {
         })
         .filter_map(|id| {
             let rel = nec.relationships.iter().find(|r| r.id == id.as_str())?;
-            let series = outlook
-                .pathway_ids()
-                .map(|(pid, p)| CalcSeries {
-                    pathway: p.name.clone(),
-                    points: outlook
-                        .series(pid, base, GroupId::Aggregate, Quantity::Nec(id))
-                        .map(|s| {
-                            s.points
-                                .iter()
-                                .map(|pt| CalcPoint {
-                                    year: pt.year,
-                                    value: quantiles(&pt.q),
-                                    extrapolated: pt.outside_fit_pct.is_some_and(|x| x > 0.0),
-                                })
-                                .collect()
-                        })
-                        .unwrap_or_default(),
-                })
-                .collect();
+            let series = calc_series(outlook, GroupId::Aggregate, Quantity::Nec(id));
             let dissolution: Vec<String> = outlook
                 .pathway_ids()
                 .filter_map(|(pid, p)| {
