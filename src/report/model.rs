@@ -663,6 +663,13 @@ impl SiteReport {
             .map(|b| b.season.as_str())
     }
 
+    /// The crossing of `level` by `season` under `pathway`.
+    pub fn crossing(&self, pathway: &str, season: &str, level: f64) -> Option<&Crossing> {
+        self.crossings
+            .iter()
+            .find(|c| c.pathway == pathway && c.season == season && c.threshold == level)
+    }
+
     /// The projection series of a pathway and season.
     pub fn series(&self, pathway: &str, season: &str) -> Option<&SeasonSeries> {
         self.projection

@@ -30,9 +30,7 @@ pub fn limiting_omega(site: &SiteReport, pathway: &str, year: i32) -> Option<Qua
 /// evaluated.
 pub fn chemistry_year(site: &SiteReport, pathway: &str) -> Option<CrossingYear> {
     let season = site.limiting_season()?;
-    site.crossings
-        .iter()
-        .find(|c| c.pathway == pathway && c.season == season && c.threshold == KEY_OMEGA_LEVEL)
+    site.crossing(pathway, season, KEY_OMEGA_LEVEL)
         .map(|c| c.median)
 }
 

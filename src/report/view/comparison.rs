@@ -163,9 +163,7 @@ fn crossing_tables(model: &ReportModel, ranked: &[RankEntry]) -> (Vec<Value>, Ve
                 .pathways
                 .iter()
                 .map(|p| {
-                    site.crossings
-                        .iter()
-                        .find(|c| c.pathway == p.id && c.season == season && c.threshold == *level)
+                    site.crossing(&p.id, season, *level)
                         .map_or_else(|| fmt::MISSING.to_string(), |c| crossing_text(c.median))
                 })
                 .collect();

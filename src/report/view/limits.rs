@@ -41,13 +41,10 @@ fn crossing_rows(model: &ReportModel, site: &SiteReport, season: &str) -> Vec<Va
                 .pathways
                 .iter()
                 .map(|p| {
-                    site.crossings
-                        .iter()
-                        .find(|c| c.pathway == p.id && c.season == season && c.threshold == level)
-                        .map_or_else(
-                            || fmt::MISSING.to_string(),
-                            |c| crossing_with_range(c.median, c.early, c.late),
-                        )
+                    site.crossing(&p.id, season, level).map_or_else(
+                        || fmt::MISSING.to_string(),
+                        |c| crossing_with_range(c.median, c.early, c.late),
+                    )
                 })
                 .collect();
             json!({ "level": fmt::level(level), "cells": cells })
