@@ -318,7 +318,17 @@ fn check_years(e: &mut Errors<'_>) -> Vec<i32> {
         prev_year = *y;
     }
     let last = e.loaded.last_sample_year();
-    let years = horizon_years_or_default(&pr.horizon_years, last);
+    let mut years = horizon_years_or_default(&pr.horizon_years, last);
+    // The plan's end year is projected too: the report shows each site at the end of its
+    // project before the long horizons.
+    if let Some(end) = e.loaded.site.plan.project_end_year
+        && end > last
+        && (lo..=hi).contains(&end)
+        && !years.contains(&end)
+    {
+        years.push(end);
+        years.sort_unstable();
+    }
     if years.is_empty() {
         e.push(
             "projection.horizon_years",

@@ -11,7 +11,7 @@ use super::model::*;
 use crate::outlook::Outlook;
 use crate::site::LoadedSite;
 use crate::site::baseline::Stats;
-use crate::site::schema::MONTH_NAMES;
+use crate::site::schema::{MONTH_NAMES, RecordKind};
 
 mod appendix;
 mod from_outlook;
@@ -500,7 +500,42 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
         methods,
         record_files: appendix::record_files(loaded),
         samples,
+        plan: plan(loaded),
+        data_basis: data_basis(loaded),
     })
+}
+
+/// The site file's restoration plan and coral cover.
+fn plan(loaded: &LoadedSite) -> SitePlan {
+    let p = &loaded.site.plan;
+    SitePlan {
+        start_year: p.project_start_year,
+        end_year: p.project_end_year,
+        target_groups: p.target_groups.clone(),
+        outplanting_area_m2: p.outplanting_area_m2,
+        coral_cover_fraction: loaded.site.baseline.coral_cover_fraction,
+    }
+}
+
+/// The records used, by kind, with the years they cover and how their TA was obtained.
+fn data_basis(loaded: &LoadedSite) -> DataBasis {
+    let mut b = DataBasis::default();
+    for s in loaded.samples.iter().filter(|s| s.is_used()) {
+        if s.kind == RecordKind::Sensor {
+            b.sensor_used += 1;
+        } else {
+            b.bottle_used += 1;
+        }
+        let y = s.time.year();
+        b.first_year = Some(b.first_year.map_or(y, |f| f.min(y)));
+        b.last_year = Some(b.last_year.map_or(y, |l| l.max(y)));
+        if s.ta_estimated {
+            b.ta_estimated += 1;
+        } else if s.measured.ta().is_some() {
+            b.ta_measured += 1;
+        }
+    }
+    b
 }
 
 /// Data coverage of the site's records, overall and per season.
@@ -561,6 +596,7 @@ fn coverage(loaded: &LoadedSite) -> Coverage {
                 SeasonCoverage {
                     season: season.name.clone(),
                     months: months_text(&season.months),
+                    month_numbers: season.months.clone(),
                     n_records: rows_per_season(i),
                     n_used: slot.map_or(0, |s| s.0),
                     n_years: slot.map_or(0, |s| s.1.len()),

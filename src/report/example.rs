@@ -157,9 +157,12 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
             stations: vec!["N1".to_string(), "N2".to_string()],
             seasons: SEASONS
                 .iter()
-                .map(|(s, m)| SeasonCoverage {
+                .enumerate()
+                .map(|(k, (s, m))| SeasonCoverage {
                     season: s.to_string(),
                     months: m.to_string(),
+                    // Dec–Feb, Mar–May, Jun–Aug, Sep–Nov.
+                    month_numbers: (0..3).map(|j| ((3 * k + j + 11) % 12 + 1) as u32).collect(),
                     n_records: 13,
                     n_used: 12 + i,
                     n_years: 3,
@@ -208,6 +211,21 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
             conversions: vec![RowFlag::DepthAsPressure],
         }],
         samples: example_samples(),
+        plan: SitePlan {
+            start_year: Some(2025),
+            end_year: Some(2035),
+            target_groups: vec!["branching Acropora".to_string()],
+            outplanting_area_m2: Some(800.0 + 200.0 * i as f64),
+            coral_cover_fraction: Some(0.2),
+        },
+        data_basis: DataBasis {
+            bottle_used: 50 + i,
+            sensor_used: 0,
+            first_year: Some(2022),
+            last_year: Some(2024),
+            ta_measured: 50 + i,
+            ta_estimated: 0,
+        },
     };
     let season = site.limiting_season().unwrap_or("Winter").to_string();
     site.crossings = example_crossings(&site, pathways, &season);

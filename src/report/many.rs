@@ -12,6 +12,7 @@ use serde::{Deserialize, Serialize};
 
 use super::build::COMPARISON_TITLE;
 use super::model::{PathwayInfo, ReportModel, ReportTime, SiteReport};
+use super::ranking::KEY_OMEGA_LEVEL;
 
 /// Version of the result-file layout (raised when [`ResultFile`] changes shape).
 pub const RESULT_FORMAT: u32 = 1;
@@ -83,22 +84,27 @@ impl ResultFile {
 }
 
 /// A site reduced to what the ranking table, the crossing table and the shared settings read:
-/// identity, coverage, baseline, the limiting season's projection and crossings, and the
-/// calcification outlooks, all at the table horizons only. QC findings, samples, local
+/// identity, plan, data basis, coverage, baseline, the limiting season's projection and
+/// crossings, and the calcification outlooks, all at the table horizons (and the plan's end
+/// year) only. QC findings, samples, local
 /// scenarios and the other seasons are left out.
 pub fn summarise(site: &SiteReport, horizons: &[i32]) -> SiteReport {
     let season = site.limiting_season().unwrap_or_default().to_string();
+    let end = site.plan.end_year;
+    let kept = |y: i32| horizons.contains(&y) || Some(y) == end;
     let mut s = site.clone();
     s.qc.clear();
     s.samples.clear();
     s.local_scenarios.clear();
-    s.probabilities.clear();
+    // The ranking reads the chance below the key level at the plan's end year only.
+    s.probabilities
+        .retain(|p| p.season == season && Some(p.year) == end && p.threshold == KEY_OMEGA_LEVEL);
     s.methods.chemistry.clear();
     s.methods.notes.clear();
     for p in &mut s.projection {
         p.seasons.retain(|x| x.season == season);
         for x in &mut p.seasons {
-            x.points.retain(|pt| horizons.contains(&pt.year));
+            x.points.retain(|pt| kept(pt.year));
         }
     }
     s.crossings.retain(|c| c.season == season);
@@ -263,16 +269,17 @@ mod tests {
         let keys = |m: &ReportModel| {
             rank_sites(m)
                 .iter()
-                .map(|e| (e.site, e.end_median, e.now_min))
+                .map(|e| (e.site, e.rank, e.end, e.last_median, e.now_min))
                 .collect::<Vec<_>>()
         };
         assert_eq!(keys(&summarised), keys(&model));
-        // Only the limiting season's series is kept, at the horizon years only.
+        // Only the limiting season's series is kept, at the horizon years and the plan's end
+        // year only.
         let s = &summarised.sites[0];
         let season = s.limiting_season().unwrap();
         assert!(s.projection.iter().all(|p| p.seasons.len() == 1
             && p.seasons[0].season == season
-            && p.seasons[0].points.len() <= model.horizons.len()));
+            && p.seasons[0].points.len() <= model.horizons.len() + 1));
         assert!(s.samples.is_empty() && s.qc.is_empty());
     }
 

@@ -15,7 +15,9 @@
 
 use serde::{Deserialize, Serialize};
 
+mod basis;
 mod thermal;
+pub use basis::*;
 pub use thermal::*;
 
 /// Everything one report (one site or a comparison of several) is made from.
@@ -259,6 +261,12 @@ pub struct SiteReport {
     pub record_files: Vec<RecordFile>,
     /// Every sample for the appendix (only used when the appendix is requested).
     pub samples: Vec<SampleRow>,
+    /// The restoration plan (the comparison evaluates the projection at its end year).
+    #[serde(default)]
+    pub plan: SitePlan,
+    /// Records by kind, years covered and how TA was obtained.
+    #[serde(default)]
+    pub data_basis: DataBasis,
 }
 
 /// One record file of a site.
@@ -324,6 +332,9 @@ pub struct SeasonCoverage {
     pub season: String,
     /// Which months the season spans, e.g. "Dec–Feb".
     pub months: String,
+    /// The same months as numbers (1 = January), in the season's order.
+    #[serde(default)]
+    pub month_numbers: Vec<u32>,
     pub n_records: usize,
     pub n_used: usize,
     /// Number of distinct calendar years with at least one used record.

@@ -2,14 +2,19 @@
 //! order. This is analysis on the report model (numbers in, an order out); the view and the
 //! figures only show the order it gives.
 //!
-//! The rule, stated in the report: each site's *first limit* under the ranking pathway is the
-//! earlier of two years, the year the median Ω_ar of its limiting season falls below
-//! [`KEY_OMEGA_LEVEL`] and the year DHW ≥ 8 °C-weeks becomes most years (median onset). A
-//! site whose first limit comes later ranks higher; ties go to the later of the two years,
-//! then to the end-horizon median Ω_ar, then to the present-day seasonal minimum. A site
-//! missing either year (no temperature record, or no crossing of that level) ranks after the
-//! sites that have both, by the same rule on what it has: missing information never lifts a
-//! site.
+//! The rule, stated in the report. Each site is evaluated at its project's end year (the plan's
+//! `project_end_year`; the first table horizon when the site file gives none) under the ranking
+//! pathway. Its *first limit* is the earlier of two years: the year the median Ω_ar of its
+//! limiting season falls below [`KEY_OMEGA_LEVEL`] and the year DHW ≥ 8 °C-weeks becomes most
+//! years (median onset).
+//! 1. A site missing either year (no temperature record, or no crossing of that level) ranks
+//!    after the sites that have both: missing information never lifts a site.
+//! 2. A site whose first limit comes within its project (by the end year) ranks after the sites
+//!    whose first limit comes later.
+//! 3. Then the median Ω_ar of the limiting season at the end year, higher first. Two sites
+//!    whose end-year medians differ by less than their uncertainty supports share a rank
+//!    ([`tied`]); sites sharing a rank are listed by the later first limit, then the later
+//!    second year, then the last-horizon median, then the present-day seasonal minimum.
 
 use super::model::{CrossingYear, PathwayInfo, Quantiles, ReportModel, SiteReport};
 
@@ -69,17 +74,73 @@ pub fn ranking_pathway(model: &ReportModel) -> Option<&PathwayInfo> {
         .get(model.pathways.len().saturating_sub(1) / 2)
 }
 
+/// The one-sided 95 % point of the standard normal distribution: a 5–95 % range spans
+/// 2 × 1.645 standard deviations of a normal distribution, and the 90 % range of a difference
+/// excludes zero when the difference exceeds 1.645 of its standard deviations.
+pub const Z_95: f64 = 1.645;
+
+/// Whether two end-year estimates are too close to tell apart: their medians differ by less
+/// than [`Z_95`] × √(s₁² + s₂²), each s the site's 5–95 % range divided by 2 × [`Z_95`] (the
+/// standard uncertainty of its seasonal mean, taken as normal). The two sites' uncertainties
+/// are taken as independent, which errs towards a tie (the constants' uncertainties they
+/// share would cancel in the difference). Non-finite ranges never tie.
+pub fn tied(a: &Quantiles, b: &Quantiles) -> bool {
+    let s = |q: &Quantiles| (q.p95 - q.p05) / (2.0 * Z_95);
+    let allowed = Z_95 * (s(a).powi(2) + s(b).powi(2)).sqrt();
+    let diff = (a.p50 - b.p50).abs();
+    allowed.is_finite() && diff.is_finite() && diff < allowed
+}
+
+/// The year a site is evaluated in: its plan's end year when the projection has it, else the
+/// first table horizon.
+pub fn evaluation_year(site: &SiteReport, horizons: &[i32]) -> Option<i32> {
+    site.plan
+        .end_year
+        .filter(|&y| {
+            site.projection
+                .iter()
+                .flat_map(|p| &p.seasons)
+                .any(|s| s.at(y).is_some())
+        })
+        .or_else(|| horizons.first().copied())
+}
+
+/// The chance (%) that the mean Ω_ar of the site's limiting season lies below
+/// [`KEY_OMEGA_LEVEL`] in a year under a pathway (share of ensemble members).
+pub fn chance_below(site: &SiteReport, pathway: &str, year: i32) -> Option<f64> {
+    let season = site.limiting_season()?;
+    site.probabilities
+        .iter()
+        .find(|p| {
+            p.pathway == pathway
+                && p.season == season
+                && p.year == year
+                && p.threshold == KEY_OMEGA_LEVEL
+        })
+        .map(|p| p.percent)
+}
+
 /// One site's ranking key, in display order.
 #[derive(Debug, Clone)]
 pub struct RankEntry {
     /// Index into `model.sites`.
     pub site: usize,
+    /// The shared rank (1 = best); equal for sites that tie.
+    pub rank: usize,
+    /// Whether another site shares this rank.
+    pub tied: bool,
     /// [`chemistry_year`] under the ranking pathway.
     pub chemistry: Option<CrossingYear>,
     /// [`heat_year`] under the ranking pathway.
     pub heat: Option<CrossingYear>,
+    /// The year the site is evaluated in ([`evaluation_year`]).
+    pub end_year: Option<i32>,
+    /// Ω_ar quantiles of the limiting season in `end_year` under the ranking pathway.
+    pub end: Option<Quantiles>,
+    /// Whether the first limit comes by `end_year`.
+    pub limited_in_project: bool,
     /// Median Ω_ar of the limiting season at the last horizon under the ranking pathway.
-    pub end_median: Option<f64>,
+    pub last_median: Option<f64>,
     /// Lowest seasonal baseline mean Ω_ar.
     pub now_min: Option<f64>,
 }
@@ -100,10 +161,36 @@ impl RankEntry {
         known.sort_unstable();
         (known.first().copied(), known.last().copied())
     }
+
+    /// The part of the key that decides groups before the end-year median (rules 1 and 2).
+    fn group(&self) -> (bool, bool) {
+        (!self.complete(), self.limited_in_project)
+    }
+
+    /// The order within a tie: later first limit, later second year, last-horizon median,
+    /// present-day minimum (all higher first), then the order given.
+    fn within_tie(&self, other: &Self) -> std::cmp::Ordering {
+        let key = |v: Option<f64>| v.unwrap_or(f64::NEG_INFINITY);
+        let (a1, a2) = self.first_and_second();
+        let (b1, b2) = other.first_and_second();
+        b1.cmp(&a1)
+            .then(b2.cmp(&a2))
+            .then(key(other.last_median).total_cmp(&key(self.last_median)))
+            .then(key(other.now_min).total_cmp(&key(self.now_min)))
+            .then(self.site.cmp(&other.site))
+    }
 }
 
-/// Ranks the sites by the rule in the module documentation; the order given breaks the last
-/// ties.
+/// Whether a first limit comes by the end year.
+fn within(first: Option<When>, end_year: Option<i32>) -> bool {
+    match (first, end_year) {
+        (Some((0, _)), _) => true,
+        (Some((1, y)), Some(end)) => y <= end,
+        _ => false,
+    }
+}
+
+/// Ranks the sites by the rule in the module documentation.
 pub fn rank_sites(model: &ReportModel) -> Vec<RankEntry> {
     let pathway = ranking_pathway(model)
         .map(|p| p.id.as_str())
@@ -113,33 +200,61 @@ pub fn rank_sites(model: &ReportModel) -> Vec<RankEntry> {
         .sites
         .iter()
         .enumerate()
-        .map(|(i, s)| RankEntry {
-            site: i,
-            chemistry: chemistry_year(s, pathway),
-            heat: heat_year(s, pathway),
-            end_median: last
-                .and_then(|y| limiting_omega(s, pathway, y))
-                .map(|q| q.p50),
-            now_min: s
-                .baseline
-                .iter()
-                .map(|b| b.omega_ar.mean)
-                .filter(|v| v.is_finite())
-                .min_by(f64::total_cmp),
+        .map(|(i, s)| {
+            let end_year = evaluation_year(s, &model.horizons);
+            let mut e = RankEntry {
+                site: i,
+                rank: 0,
+                tied: false,
+                chemistry: chemistry_year(s, pathway),
+                heat: heat_year(s, pathway),
+                end_year,
+                end: end_year.and_then(|y| limiting_omega(s, pathway, y)),
+                limited_in_project: false,
+                last_median: last
+                    .and_then(|y| limiting_omega(s, pathway, y))
+                    .map(|q| q.p50),
+                now_min: s
+                    .baseline
+                    .iter()
+                    .map(|b| b.omega_ar.mean)
+                    .filter(|v| v.is_finite())
+                    .min_by(f64::total_cmp),
+            };
+            e.limited_in_project = within(e.first_and_second().0, end_year);
+            e
         })
         .collect();
-    let key = |v: Option<f64>| v.unwrap_or(f64::NEG_INFINITY);
+    let end_key = |e: &RankEntry| e.end.map_or(f64::NEG_INFINITY, |q| q.p50);
     entries.sort_by(|a, b| {
-        let (a1, a2) = a.first_and_second();
-        let (b1, b2) = b.first_and_second();
-        b.complete()
-            .cmp(&a.complete())
-            .then(b1.cmp(&a1))
-            .then(b2.cmp(&a2))
-            .then(key(b.end_median).total_cmp(&key(a.end_median)))
-            .then(key(b.now_min).total_cmp(&key(a.now_min)))
-            .then(a.site.cmp(&b.site))
+        a.group()
+            .cmp(&b.group())
+            .then(end_key(b).total_cmp(&end_key(a)))
+            .then(a.within_tie(b))
     });
+    // Tie groups: consecutive sites of one group whose end-year estimates tie with the
+    // group's first site; each group is then listed by the tie order.
+    let mut start = 0;
+    while start < entries.len() {
+        let mut stop = start + 1;
+        while let (Some(head), Some(next)) = (entries.get(start), entries.get(stop)) {
+            let same = head.group() == next.group()
+                && matches!((&head.end, &next.end), (Some(a), Some(b)) if tied(a, b));
+            if !same {
+                break;
+            }
+            stop += 1;
+        }
+        if let Some(group) = entries.get_mut(start..stop) {
+            group.sort_by(RankEntry::within_tie);
+            let n = group.len();
+            for e in group {
+                e.rank = start + 1;
+                e.tied = n > 1;
+            }
+        }
+        start = stop;
+    }
     entries
 }
 
@@ -148,14 +263,40 @@ mod tests {
     use super::*;
     use crate::report::example::example_model;
 
+    /// The plan's end year of the example sites (a projected year of theirs).
+    const END: i32 = 2035;
+
+    /// Ω_ar quantiles with median `m` and a 5–95 % range of ± `half`.
+    fn q(m: f64, half: f64) -> Quantiles {
+        Quantiles {
+            p05: m - half,
+            p25: m - half / 2.0,
+            p50: m,
+            p75: m + half / 2.0,
+            p95: m + half,
+        }
+    }
+
+    /// Sets the limiting season's Ω_ar of a site in the plan's end year under every pathway.
+    fn set_end(site: &mut SiteReport, value: Quantiles) {
+        let season = site.limiting_season().unwrap().to_string();
+        for p in &mut site.projection {
+            for s in p.seasons.iter_mut().filter(|s| s.season == season) {
+                let pt = s.points.iter_mut().find(|pt| pt.year == END).unwrap();
+                pt.omega_ar = value;
+            }
+        }
+    }
+
     /// A model of `ends.len()` sites whose limiting season has the given median Ω_ar in the
     /// last horizon year under every pathway (`None`: that year is missing from the series) and
-    /// the given lowest seasonal baseline mean; no site has a crossing or a heat year, so the
-    /// first two keys tie.
+    /// the given lowest seasonal baseline mean; no site has a crossing or a heat year, and every
+    /// site has the same Ω_ar in the plan's end year, so all tie on the first keys.
     fn model_with(ends: &[Option<f64>], now_mins: &[f64]) -> ReportModel {
         let mut model = example_model(ends.len());
         let last = *model.horizons.last().unwrap();
         for ((site, end), now) in model.sites.iter_mut().zip(ends).zip(now_mins) {
+            assert_eq!(site.plan.end_year, Some(END));
             site.crossings.clear();
             site.thermal = None;
             // Every season's baseline mean at or above `now`, the first season exactly at it,
@@ -176,6 +317,7 @@ mod tests {
                     }
                 }
             }
+            set_end(site, q(3.3, 0.3));
         }
         model
     }
@@ -185,7 +327,7 @@ mod tests {
     }
 
     #[test]
-    fn higher_end_median_ranks_first() {
+    fn within_a_tie_the_higher_last_median_comes_first() {
         // End medians 3.1, 3.6, 2.8, 3.3: descending gives sites 1 (3.6), 3 (3.3), 0 (3.1),
         // 2 (2.8).
         let m = model_with(
@@ -194,7 +336,8 @@ mod tests {
         );
         assert_eq!(order(&m), vec![1, 3, 0, 2]);
         let ranked = rank_sites(&m);
-        assert_eq!(ranked[0].end_median, Some(3.6));
+        assert_eq!(ranked[0].last_median, Some(3.6));
+        assert!(ranked.iter().all(|e| e.rank == 1 && e.tied));
         assert_eq!(ranked[0].now_min, Some(3.0));
     }
 
@@ -212,7 +355,7 @@ mod tests {
         // present-day minimum (4.2) is the highest; sites 1 (2.9) and 2 (3.0) by end median.
         let m = model_with(&[None, Some(2.9), Some(3.0)], &[4.2, 3.0, 3.0]);
         assert_eq!(order(&m), vec![2, 1, 0]);
-        assert_eq!(rank_sites(&m)[2].end_median, None);
+        assert_eq!(rank_sites(&m)[2].last_median, None);
     }
 
     #[test]
@@ -315,7 +458,7 @@ mod tests {
     }
 
     #[test]
-    fn equal_first_limits_go_to_the_later_second_then_to_the_end_median() {
+    fn equal_first_limits_go_to_the_later_second_then_to_the_last_median() {
         use CrossingYear::Year;
         // All first limits 2050 (heat). Second limits: 2080, 2090, 2080 → site 1 first; sites 0
         // and 2 tie on both years and go by end median (3.1 < 3.4): 2 before 0.
@@ -347,5 +490,55 @@ mod tests {
             ],
         );
         assert_eq!(order(&m), vec![2, 1, 0]);
+    }
+
+    #[test]
+    fn the_tie_rule_is_the_90_percent_range_of_the_difference() {
+        // Both 5–95 % ranges ± 0.30: s = 0.60 / 3.29 each, so the difference may reach
+        // 1.645 × √2 × 0.60 / 3.29 = 0.30 × √2 = 0.424 before the sites are told apart.
+        let a = q(3.50, 0.30);
+        assert!(tied(&a, &q(3.10, 0.30)), "0.40 < 0.424");
+        assert!(!tied(&a, &q(3.05, 0.30)), "0.45 > 0.424");
+        // Narrower ranges (± 0.10: limit 0.10 × √2 = 0.141) tell 0.20 apart.
+        assert!(!tied(&q(3.50, 0.10), &q(3.30, 0.10)));
+        assert!(!tied(&a, &q(f64::NAN, 0.30)));
+    }
+
+    #[test]
+    fn end_year_medians_order_the_sites_and_close_ones_share_a_rank() {
+        // End-year medians 3.6, 3.5 and 3.0 (each ± 0.3, limit 0.424): sites 0 and 1 differ by
+        // 0.1 and share rank 1; site 2 is 0.6 below site 0 and ranks 3. Within the tie site 1
+        // comes first: its last-horizon median (3.2) is higher than site 0's (3.0).
+        let mut m = model_with(&[Some(3.0), Some(3.2), Some(2.5)], &[3.4; 3]);
+        for (site, end) in m.sites.iter_mut().zip([3.6, 3.5, 3.0]) {
+            set_end(site, q(end, 0.3));
+        }
+        let ranked = rank_sites(&m);
+        assert_eq!(order(&m), vec![1, 0, 2]);
+        let ranks: Vec<(usize, bool)> = ranked.iter().map(|e| (e.rank, e.tied)).collect();
+        assert_eq!(ranks, vec![(1, true), (1, true), (3, false)]);
+        assert_eq!(ranked[0].end_year, Some(END));
+    }
+
+    #[test]
+    fn a_first_limit_within_the_project_ranks_after_those_beyond_it() {
+        use CrossingYear::{NotBy, Year};
+        // Site 0 has the higher end-year median (3.8 against 3.2, not a tie) but reaches DHW ≥ 8
+        // in most years in 2033, within its project (end 2035): it ranks after site 1, whose
+        // first limit (2060) comes after its project.
+        let mut m = model_with(&[Some(3.0); 2], &[3.4; 2]);
+        set_end(&mut m.sites[0], q(3.8, 0.1));
+        set_end(&mut m.sites[1], q(3.2, 0.1));
+        with_years(
+            &mut m,
+            &[
+                (Some(NotBy(2100)), Some(Some(2033))),
+                (Some(Year(2060)), Some(Some(2070))),
+            ],
+        );
+        assert_eq!(order(&m), vec![1, 0]);
+        let ranked = rank_sites(&m);
+        assert!(ranked[1].limited_in_project && !ranked[0].limited_in_project);
+        assert_eq!((ranked[0].rank, ranked[1].rank), (1, 2));
     }
 }

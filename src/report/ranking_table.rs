@@ -6,7 +6,7 @@
 use serde_json::{Value, json};
 
 use super::model::ReportModel;
-use super::ranking::{limiting_omega, rank_sites, ranking_pathway};
+use super::ranking::{chance_below, limiting_omega, rank_sites, ranking_pathway};
 use super::view::crossing_text;
 
 /// Decimals of Ω_ar in the table (the report prints two; the table keeps one more).
@@ -39,7 +39,13 @@ fn rows(model: &ReportModel, origins: &Origins<'_>) -> (Vec<String>, Vec<Vec<Str
         "file",
         "limiting_season",
         "pathway",
+        "tied",
         "present_min_omega_ar",
+        "plan_end_year",
+        "omega_ar_plan_end_p05",
+        "omega_ar_plan_end_median",
+        "omega_ar_plan_end_p95",
+        "chance_below_3_plan_end_pct",
     ]
     .map(String::from)
     .to_vec();
@@ -59,13 +65,14 @@ fn rows(model: &ReportModel, origins: &Origins<'_>) -> (Vec<String>, Vec<Vec<Str
             .unwrap_or_default()
     };
     let mut out = Vec::new();
-    for (rank, e) in rank_sites(model).iter().enumerate() {
+    for e in &rank_sites(model) {
         let Some(site) = model.sites.get(e.site) else {
             continue;
         };
         let season = site.limiting_season().unwrap_or_default();
+        let chance = e.end_year.and_then(|y| chance_below(site, &pathway, y));
         let mut row = vec![
-            (rank + 1).to_string(),
+            e.rank.to_string(),
             origins
                 .lines
                 .get(e.site)
@@ -76,7 +83,15 @@ fn rows(model: &ReportModel, origins: &Origins<'_>) -> (Vec<String>, Vec<Vec<Str
             origins.files.get(e.site).cloned().unwrap_or_default(),
             season.to_string(),
             pathway.clone(),
+            e.tied.to_string(),
             num(e.now_min),
+            e.end_year.map(|y| y.to_string()).unwrap_or_default(),
+            num(e.end.map(|q| q.p05)),
+            num(e.end.map(|q| q.p50)),
+            num(e.end.map(|q| q.p95)),
+            chance
+                .and_then(|v| crate::numfmt::fixed(v, 1))
+                .unwrap_or_default(),
         ];
         for &y in &model.horizons {
             let q = limiting_omega(site, &pathway, y);
@@ -117,14 +132,20 @@ pub fn ranking_json(
     left_out: &[LeftOut<'_>],
 ) -> Result<Vec<u8>, String> {
     let (header, rows) = rows(model, origins);
-    let numeric = |k: &str| k.starts_with("omega_ar_") || k == "present_min_omega_ar";
+    let numeric = |k: &str| {
+        k.starts_with("omega_ar_")
+            || k == "present_min_omega_ar"
+            || k == "chance_below_3_plan_end_pct"
+    };
     let sites: Vec<Value> = rows
         .iter()
         .map(|r| {
             let mut o = serde_json::Map::new();
             for (k, v) in header.iter().zip(r) {
-                let value = if k == "rank" || k == "line" {
+                let value = if k == "rank" || k == "line" || k == "plan_end_year" {
                     v.parse::<u64>().map_or(Value::Null, Value::from)
+                } else if k == "tied" {
+                    Value::Bool(v == "true")
                 } else if numeric(k) {
                     v.parse::<f64>().map_or(Value::Null, Value::from)
                 } else if v.is_empty() {
@@ -141,8 +162,8 @@ pub fn ranking_json(
     let doc = json!({
         "tool": format!("{} {}", model.tool.name, model.tool.version),
         "criteria": {
-            "order": "median Omega_ar of each site's limiting season (lowest present-day mean) in the last horizon year under the ranking pathway, higher first",
-            "ties": "the present-day seasonal minimum of the mean Omega_ar, higher first; then the order listed",
+            "order": "under the ranking pathway: sites missing the chemistry or the heat year last; then sites whose first limit (the earlier of the year the median Omega_ar of the limiting season falls below 3.0 and the year DHW >= 8 degC-weeks is reached in most years) comes by the project's end year after the others; then the median Omega_ar of the limiting season (lowest present-day mean) in the project's end year, higher first",
+            "ties": "two sites share a rank when their end-year medians differ by less than 1.645 * sqrt(s1^2 + s2^2), s = (p95 - p05) / 3.29 of each site; sites sharing a rank are listed by the later first limit, the later second year, the last-horizon median, then the present-day seasonal minimum",
             "pathway": pathway,
             "last_horizon": model.horizons.last(),
             "first_below": "first projected year in which the ensemble median of the limiting season falls below the level, under the ranking pathway",
@@ -189,11 +210,11 @@ mod tests {
         let rows: Vec<csv::StringRecord> = r.records().map(|x| x.unwrap()).collect();
         assert_eq!(rows.len(), 3);
         let ranked = rank_sites(&model);
-        for (k, (row, e)) in rows.iter().zip(&ranked).enumerate() {
-            assert_eq!(&row[0], (k + 1).to_string());
+        for (row, e) in rows.iter().zip(&ranked) {
+            assert_eq!(&row[0], e.rank.to_string());
             assert_eq!(&row[1], (e.site + 1).to_string());
             // The median with three decimals, worked out here from the model's number.
-            let expected = format!("{:.3}", e.end_median.unwrap());
+            let expected = format!("{:.3}", e.last_median.unwrap());
             assert_eq!(&row[col], expected);
         }
     }

@@ -8,6 +8,7 @@
 //! [`super::ranking`].
 
 mod appendix;
+mod basis;
 mod comparison;
 mod limits;
 mod site;
