@@ -6,7 +6,10 @@ use serde_json::{Value, json};
 
 use crate::report::fmt;
 use crate::report::model::{DataBasis, ReportModel, SitePlan, SiteReport};
-use crate::report::ranking::RankEntry;
+use crate::report::ranking::{
+    RankEntry, chance_below, chemistry_year, evaluation_year, heat_year, limiting_omega,
+    ranking_pathway,
+};
 use crate::site::schema::MONTH_NAMES;
 
 fn month_name(m: u32) -> &'static str {
@@ -183,6 +186,43 @@ pub(super) fn like_for_like(model: &ReportModel, ranked: &[RankEntry]) -> String
          year, so its mean can sit lower.",
         parts.join("; ")
     )
+}
+
+/// The one-site verdict in a sentence: the limiting season's mean Ω_ar at the project's end
+/// year under the middle (ranking) pathway, the chance it lies below the key level, and the
+/// first limit.
+pub(super) fn verdict_sentence(model: &ReportModel, site: &SiteReport) -> Option<String> {
+    let pathway = ranking_pathway(model)?;
+    let year = evaluation_year(site, &model.horizons)?;
+    let season = site.limiting_season()?;
+    let q = limiting_omega(site, &pathway.id, year)?;
+    let when = if site.plan.end_year == Some(year) {
+        format!("at the project's end year, {year}")
+    } else {
+        format!("in {year}")
+    };
+    let chance = chance_below(site, &pathway.id, year)
+        .map(|p| {
+            format!(
+                ", with a {} % chance of lying below {}",
+                fmt::number(p, 0),
+                fmt::level(crate::report::ranking::KEY_OMEGA_LEVEL)
+            )
+        })
+        .unwrap_or_default();
+    let first = super::comparison::first_limit_text(
+        chemistry_year(site, &pathway.id),
+        heat_year(site, &pathway.id),
+        site.thermal.is_some(),
+    );
+    Some(format!(
+        "Under {}, the {season} season's mean Ω_ar {when} is {} ({}){chance}; its first limit \
+         (Ω_ar below {} or DHW ≥ 8 °C-weeks in most years) is {first}.",
+        pathway.label,
+        fmt::omega(q.p50),
+        fmt::range(&fmt::omega(q.p05), &fmt::omega(q.p95)),
+        fmt::level(crate::report::ranking::KEY_OMEGA_LEVEL),
+    ))
 }
 
 #[cfg(test)]

@@ -8,7 +8,7 @@ use super::thermal::{heat_text, key_level, key_years};
 use super::{crossing_text, fig, missing_cell, quant_cell};
 use crate::report::figures::ReportFigures;
 use crate::report::fmt;
-use crate::report::model::{CalcUnit, ReportModel, SiteReport};
+use crate::report::model::{CalcUnit, CrossingYear, ReportModel, SiteReport};
 use crate::report::palette;
 use crate::report::ranking::{
     RankEntry, Z_95, chance_below, limiting_omega, rank_sites, ranking_pathway,
@@ -156,7 +156,7 @@ fn ranking_row(
             || fmt::MISSING.to_string(),
             |p| format!("{} %", fmt::number(p, 0)),
         );
-    let first = first_limit_text(e, site.thermal.is_some());
+    let first = first_limit_text(e.chemistry, e.heat, site.thermal.is_some());
     json!({
         "rank": if e.tied { format!("={}", e.rank) } else { e.rank.to_string() },
         "site": site.name,
@@ -177,10 +177,13 @@ fn ranking_row(
 
 /// The first limit under the ranking pathway in words: "2025 (Ω_ar)", "2056 (heat)", "not by
 /// 2100", with what is missing when a year is.
-fn first_limit_text(e: &RankEntry, has_record: bool) -> String {
-    use crate::report::model::CrossingYear;
-    let (Some(chem), Some(heat)) = (e.chemistry, e.heat) else {
-        return match e.chemistry {
+pub(super) fn first_limit_text(
+    chemistry: Option<CrossingYear>,
+    heat: Option<CrossingYear>,
+    has_record: bool,
+) -> String {
+    let (Some(chem), Some(heat)) = (chemistry, heat) else {
+        return match chemistry {
             None => "no Ω_ar crossing computed".to_string(),
             Some(_) => heat_text(None, has_record),
         };

@@ -326,7 +326,11 @@ fn verdict_view(model: &ReportModel, site: &SiteReport) -> Value {
             json!({ "pathway": p.label, "cells": cells })
         })
         .collect();
-    json!({ "season": site.limiting_season(), "rows": rows })
+    json!({
+        "season": site.limiting_season(),
+        "rows": rows,
+        "sentence": super::basis::verdict_sentence(model, site),
+    })
 }
 
 fn coverage_view(site: &SiteReport) -> Value {
