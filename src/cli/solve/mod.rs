@@ -203,10 +203,13 @@ fn number(rec: &Row<'_>, idx: Option<usize>, column: &str) -> Result<Option<f64>
     }
 }
 
+/// A solved quantity's reader and the decimals it is written with.
+type Quantity = (fn(&CarbonateState) -> f64, usize);
+
 /// The solved quantities, in the order of the first [`QUANTITY_COUNT`] output columns, each
 /// with the decimals it is written with (fixed, so that output bytes never depend on float
 /// printing). Looked up by position: the writer does no name matching per row.
-const QUANTITIES: [(fn(&CarbonateState) -> f64, usize); QUANTITY_COUNT] = [
+const QUANTITIES: [Quantity; QUANTITY_COUNT] = [
     (|s| s.ta, 4),
     (|s| s.dic, 4),
     (|s| s.ph_t, 6),
