@@ -24,25 +24,6 @@
 const POW10: [f64; 16] = [
     1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
 ];
-const POW10_U64: [u64; 16] = [
-    1,
-    10,
-    100,
-    1_000,
-    10_000,
-    100_000,
-    1_000_000,
-    10_000_000,
-    100_000_000,
-    1_000_000_000,
-    10_000_000_000,
-    100_000_000_000,
-    1_000_000_000_000,
-    10_000_000_000_000,
-    100_000_000_000_000,
-    1_000_000_000_000_000,
-];
-
 /// Largest scaled magnitude taken by the fast path: below 2^52 the fraction of the scaled
 /// value is exact and the digits fit a u64.
 const FAST_LIMIT: f64 = 4_503_599_627_370_496.0; // 2^52
@@ -56,10 +37,9 @@ pub fn push_fixed(buf: &mut String, v: f64, decimals: usize) -> bool {
     }
     let mut digits = [b'0'; 40];
     let fast = scale_and_round(v, decimals).and_then(|s| {
-        let slot = digits.get_mut(..s.len())?;
-        s.fill(slot);
+        let start = s.write_right(&mut digits);
         // Only ASCII digits, '.' and '-' were written.
-        std::str::from_utf8(slot).ok()
+        std::str::from_utf8(digits.get(start..)?).ok()
     });
     match fast {
         Some(text) => buf.push_str(text),
@@ -76,11 +56,9 @@ pub fn push_fixed_bytes(buf: &mut Vec<u8>, v: f64, decimals: usize) -> bool {
     }
     match scale_and_round(v, decimals) {
         Some(s) => {
-            let start = buf.len();
-            buf.resize(start + s.len(), b'0');
-            if let Some(slot) = buf.get_mut(start..) {
-                s.fill(slot);
-            }
+            let mut digits = [b'0'; 40];
+            let start = s.write_right(&mut digits);
+            buf.extend_from_slice(digits.get(start..).unwrap_or_default());
         }
         None => {
             let mut s = String::new();
@@ -124,10 +102,10 @@ pub fn tidy(v: f64) -> String {
     }
 }
 
-/// A value rounded to `decimals` decimals: `int.frac`, `frac` < 10^decimals.
+/// A value rounded to `decimals` decimals: the digits `n` with the point `decimals` places
+/// from the right.
 struct Scaled {
-    int: u64,
-    frac: u64,
+    n: u64,
     decimals: usize,
     negative: bool,
 }
@@ -137,7 +115,6 @@ struct Scaled {
 /// takes the exact path).
 fn scale_and_round(v: f64, decimals: usize) -> Option<Scaled> {
     let scale = *POW10.get(decimals)?;
-    let unit = *POW10_U64.get(decimals)?;
     let p = (v * scale).abs();
     if p >= FAST_LIMIT {
         return None;
@@ -152,17 +129,8 @@ fn scale_and_round(v: f64, decimals: usize) -> Option<Scaled> {
         return None;
     }
     let n = floor + u64::from(frac > 0.5);
-    // The decimals the program writes most divide by a constant (a multiplication instead
-    // of a hardware division).
-    let (int, frac) = match decimals {
-        4 => (n / 10_000, n % 10_000),
-        5 => (n / 100_000, n % 100_000),
-        6 => (n / 1_000_000, n % 1_000_000),
-        _ => (n / unit, n % unit),
-    };
     Some(Scaled {
-        int,
-        frac,
+        n,
         decimals,
         negative: v < 0.0 && n != 0,
     })
@@ -181,68 +149,98 @@ const PAIRS: [u8; 200] = {
 };
 
 impl Scaled {
-    /// Bytes of the text: sign, integer digits (at least one), point and decimals.
-    fn len(&self) -> usize {
-        // int < 2^52 < 10^16: it has as many digits as powers of ten up to it (at least 1).
-        let int_digits = POW10_U64.iter().take_while(|&&p| p <= self.int).count();
-        usize::from(self.negative)
-            + int_digits.max(1)
-            + if self.decimals > 0 {
-                1 + self.decimals
-            } else {
-                0
+    /// Write the text (sign, integer digits, at least one, point and decimals) at the end of
+    /// `out`, right to left, two digits per step; returns where it starts. The longest text,
+    /// a sign, 16 digits of n < 2^52 < 10^16, a point and a leading zero, fits 40 bytes.
+    fn write_right(&self, out: &mut [u8; 40]) -> usize {
+        let mut pos = out.len();
+        let mut put = |bytes: &[u8]| {
+            pos = pos.saturating_sub(bytes.len());
+            if let Some(slot) = out.get_mut(pos..pos + bytes.len()) {
+                slot.copy_from_slice(bytes);
             }
-    }
-
-    /// Write the text into `slot` (exactly [`Scaled::len`] bytes), right to left.
-    fn fill(&self, slot: &mut [u8]) {
-        let width = slot.len();
-        let mut pos = width;
-        let mut put = |b: u8| {
-            pos = pos.saturating_sub(1);
-            if let Some(s) = slot.get_mut(pos) {
-                *s = b;
-            }
-            pos
         };
         let pair = |v: u64| {
-            let i = 2 * v as usize;
-            (
-                PAIRS.get(i).copied().unwrap_or(b'0'),
-                PAIRS.get(i + 1).copied().unwrap_or(b'0'),
-            )
+            let i = 2 * (v % 100) as usize;
+            PAIRS.get(i..i + 2).unwrap_or(b"00")
         };
-        let (mut int, mut frac) = (self.int, self.frac);
+        let mut n = self.n;
         let mut left = self.decimals;
         while left >= 2 {
-            let (hi, lo) = pair(frac % 100);
-            put(lo);
-            put(hi);
-            frac /= 100;
+            put(pair(n));
+            n /= 100;
             left -= 2;
         }
         if left == 1 {
-            put(b'0' + (frac % 10) as u8);
+            put(&[b'0' + (n % 10) as u8]);
+            n /= 10;
         }
-        let mut left_of = width;
         if self.decimals > 0 {
-            left_of = put(b'.');
+            put(b".");
         }
-        while int >= 10 {
-            let (hi, lo) = pair(int % 100);
-            put(lo);
-            left_of = put(hi);
-            int /= 100;
+        while n >= 100 {
+            put(pair(n));
+            n /= 100;
         }
-        // A leading digit is left when the pairs used up an odd count, or when the value is
-        // below 1 (then the one slot left before the sign is the zero of "0.").
-        if int > 0 || left_of > usize::from(self.negative) {
-            put(b'0' + int as u8);
+        if n >= 10 {
+            put(pair(n));
+        } else {
+            put(&[b'0' + n as u8]);
         }
         if self.negative {
-            put(b'-');
+            put(b"-");
+        }
+        pos
+    }
+}
+
+/// `text` as a number, exactly as `str::parse::<f64>` reads it, quickly for the plain
+/// decimals of data files (`-12.345`, `2300`, `+.5`) and through the standard library for
+/// anything else (exponents, long mantissas, `inf`, errors).
+///
+/// A plain decimal with at most 19 digits is `m / 10^k` with integer `m`. When `m < 2^53`
+/// and `k ≤ 22`, both `m` and `10^k` are exact in `f64`, and one IEEE division is correctly
+/// rounded, so the quotient is the double nearest to the decimal: the value the standard
+/// parser returns (Clinger 1990, "How to read floating point numbers accurately", the fast
+/// path). The test module checks the two against each other.
+pub fn parse_f64(text: &str) -> Result<f64, std::num::ParseFloatError> {
+    fast_decimal(text.as_bytes()).map_or_else(|| text.parse::<f64>(), Ok)
+}
+
+/// Powers of ten exact in `f64`, 10^0 … 10^22.
+const EXACT_POW10: [f64; 23] = [
+    1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16,
+    1e17, 1e18, 1e19, 1e20, 1e21, 1e22,
+];
+
+/// The fast path of [`parse_f64`], or `None` when the text is not a short plain decimal.
+fn fast_decimal(bytes: &[u8]) -> Option<f64> {
+    let (negative, body) = match bytes.split_first() {
+        Some((b'-', rest)) => (true, rest),
+        Some((b'+', rest)) => (false, rest),
+        _ => (false, bytes),
+    };
+    let mut m: u64 = 0;
+    let mut digits = 0usize;
+    let mut frac_digits = 0usize;
+    let mut seen_point = false;
+    for &b in body {
+        match b {
+            // 19 digits fit a u64 (10^19 - 1 < 2^64); a 20th takes the standard path.
+            b'0'..=b'9' if digits < 19 => {
+                m = m * 10 + u64::from(b - b'0');
+                digits += 1;
+                frac_digits += usize::from(seen_point);
+            }
+            b'.' if !seen_point => seen_point = true,
+            _ => return None,
         }
     }
+    if digits == 0 || m > (1u64 << 53) {
+        return None;
+    }
+    let v = m as f64 / EXACT_POW10.get(frac_digits)?;
+    Some(if negative { -v } else { v })
 }
 
 #[cfg(test)]
@@ -326,7 +324,85 @@ mod tests {
         }
     }
 
+    /// The parser against the standard library's (a separate, exact implementation).
+    fn same_parse(text: &str) -> Result<(), String> {
+        match (parse_f64(text), text.parse::<f64>()) {
+            (Ok(a), Ok(b)) if a.to_bits() == b.to_bits() || (a.is_nan() && b.is_nan()) => Ok(()),
+            (Err(_), Err(_)) => Ok(()),
+            (a, b) => Err(format!("{text:?}: {a:?} vs std {b:?}")),
+        }
+    }
+
+    #[test]
+    fn parse_agrees_with_std_on_edge_texts() {
+        for t in [
+            "0",
+            "-0",
+            "+0",
+            "0.0",
+            "-0.000",
+            ".5",
+            "5.",
+            "+.5",
+            "-.5",
+            ".",
+            "-",
+            "+",
+            "",
+            "1e3",
+            "1.5E-3",
+            "inf",
+            "-NaN",
+            "1..2",
+            "1.2.3",
+            " 1",
+            "1 ",
+            "0x10",
+            "١",
+            "9007199254740992",
+            "9007199254740993",
+            "9007199254740993.0",
+            "9999999999999999999",
+            "99999999999999999999",
+            "0.1",
+            "0.2",
+            "0.3",
+            "2300.0000",
+            "8.040225",
+            "-1.25",
+            "0.0000000000000000000001",
+            "0.00000000000000000000001",
+            "1234567890.123456789",
+            "00000000000000000001.5",
+        ] {
+            same_parse(t).unwrap();
+        }
+    }
+
     proptest! {
+        #[test]
+        fn parse_agrees_with_std_on_plain_decimals(int in 0u64..10_000_000_000,
+                                                   frac in 0u64..1_000_000_000_000,
+                                                   width in 0usize..13, neg in any::<bool>()) {
+            let frac_text = format!("{frac:012}");
+            let text = format!("{}{int}.{}", if neg { "-" } else { "" },
+                               frac_text.get(..width).unwrap_or(""));
+            prop_assert_eq!(same_parse(&text), Ok(()));
+        }
+
+        #[test]
+        fn parse_agrees_with_std_on_printed_doubles(bits in any::<u64>(), d in 0usize..25) {
+            let v = f64::from_bits(bits);
+            for text in [format!("{v}"), format!("{v:.d$}"), format!("{v:e}")] {
+                prop_assert_eq!(same_parse(&text), Ok(()));
+            }
+        }
+
+        #[test]
+        fn parse_agrees_with_std_on_any_short_text(text in "[-+.0-9eE]{0,24}") {
+            prop_assert_eq!(same_parse(&text), Ok(()));
+        }
+
         #[test]
         fn agrees_with_std_on_any_finite_value(bits in any::<u64>(), d in 0usize..18) {
             let v = f64::from_bits(bits);

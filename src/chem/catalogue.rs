@@ -43,6 +43,8 @@ pub type HydrogenFluorideFn = fn(&TempSal) -> f64;
 pub struct Entry<F> {
     /// The id accepted on the command line and in site files (author and year).
     pub id: &'static str,
+    /// The name the method goes by in a methods table: its authors, as the citation opens.
+    pub method: &'static str,
     /// Short citation of the publication.
     pub citation: &'static str,
     /// Fitted temperature range, °C.
@@ -59,6 +61,7 @@ pub struct Entry<F> {
 pub const CARBONIC_ACID: &[Entry<CarbonicAcidFn>] = &[
     Entry {
         id: "lueker2000",
+        method: "Lueker, Dickson & Keeling",
         citation: "Lueker, Dickson & Keeling (2000), Mar. Chem. 70:105",
         temp_c: (2.0, 35.0),
         salinity: (19.0, 43.0),
@@ -67,6 +70,7 @@ pub const CARBONIC_ACID: &[Entry<CarbonicAcidFn>] = &[
     },
     Entry {
         id: "millero2010",
+        method: "Millero",
         citation: "Millero (2010), Mar. Freshwater Res. 61:139",
         temp_c: (0.0, 50.0),
         salinity: (1.0, 50.0),
@@ -75,6 +79,7 @@ pub const CARBONIC_ACID: &[Entry<CarbonicAcidFn>] = &[
     },
     Entry {
         id: "wmw2014",
+        method: "Waters, Millero & Woosley",
         citation: "Waters, Millero & Woosley (2014), Mar. Chem. 165:66",
         temp_c: (0.0, 50.0),
         salinity: (1.0, 50.0),
@@ -83,6 +88,7 @@ pub const CARBONIC_ACID: &[Entry<CarbonicAcidFn>] = &[
     },
     Entry {
         id: "sulpis2020",
+        method: "Sulpis et al.",
         citation: "Sulpis et al. (2020), Ocean Sci. 16:847",
         temp_c: (-1.7, 31.8),
         salinity: (30.7, 37.6),
@@ -91,6 +97,7 @@ pub const CARBONIC_ACID: &[Entry<CarbonicAcidFn>] = &[
     },
     Entry {
         id: "dm87",
+        method: "Dickson & Millero",
         citation: "Dickson & Millero (1987), Deep-Sea Res. 34:1733 (refit of Mehrbach et al. 1973)",
         temp_c: (2.0, 35.0),
         salinity: (20.0, 40.0),
@@ -103,6 +110,7 @@ pub const CARBONIC_ACID: &[Entry<CarbonicAcidFn>] = &[
 pub const TOTAL_BORON: &[Entry<TotalBoronFn>] = &[
     Entry {
         id: "lee2010",
+        method: "Lee et al.",
         citation: "Lee et al. (2010), Geochim. Cosmochim. Acta 74:1801",
         temp_c: (-2.0, 45.0),
         salinity: (0.0, 50.0),
@@ -111,6 +119,7 @@ pub const TOTAL_BORON: &[Entry<TotalBoronFn>] = &[
     },
     Entry {
         id: "uppstrom1974",
+        method: "Uppström",
         citation: "Uppström (1974), Deep-Sea Res. 21:161",
         temp_c: (-2.0, 45.0),
         salinity: (0.0, 50.0),
@@ -123,6 +132,7 @@ pub const TOTAL_BORON: &[Entry<TotalBoronFn>] = &[
 pub const HYDROGEN_FLUORIDE: &[Entry<HydrogenFluorideFn>] = &[
     Entry {
         id: "pf87",
+        method: "Perez & Fraga",
         citation: "Perez & Fraga (1987), Mar. Chem. 21:161",
         temp_c: (9.0, 33.0),
         salinity: (10.0, 40.0),
@@ -131,6 +141,7 @@ pub const HYDROGEN_FLUORIDE: &[Entry<HydrogenFluorideFn>] = &[
     },
     Entry {
         id: "dr79",
+        method: "Dickson & Riley",
         citation: "Dickson & Riley (1979), Mar. Chem. 7:89",
         temp_c: (5.0, 35.0),
         salinity: (10.0, 48.0),
@@ -380,6 +391,29 @@ fn suggest(value: &str, ids: &[&'static str]) -> Option<&'static str> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// A methods table names a method by its authors: the words its citation opens with,
+    /// before the year (the citations are the publications' own author lists).
+    #[test]
+    fn method_names_open_their_citations() {
+        let all = crate::chem::MethodSet::default().method_citations();
+        let listed = CARBONIC_ACID
+            .iter()
+            .map(|e| (e.method, e.citation))
+            .chain(TOTAL_BORON.iter().map(|e| (e.method, e.citation)))
+            .chain(HYDROGEN_FLUORIDE.iter().map(|e| (e.method, e.citation)))
+            .chain(all.iter().map(|c| (c.method, c.citation)));
+        for (method, citation) in listed {
+            assert!(
+                citation.starts_with(&format!("{method} (")),
+                "{method} / {citation}"
+            );
+        }
+        assert_eq!(
+            all.first().map(|c| c.method),
+            Some("Lueker, Dickson & Keeling")
+        );
+    }
 
     #[test]
     fn messages_name_the_choice_not_a_type() {

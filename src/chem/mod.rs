@@ -186,51 +186,99 @@ pub struct MethodSet {
     pub kf: KfSource,
 }
 
+/// One constant of a methods section: what it gives, the name of the method (its authors)
+/// and the short citation.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct MethodCitation {
+    pub quantity: &'static str,
+    pub method: &'static str,
+    pub citation: &'static str,
+}
+
 /// Citations of the constants every method set shares.
-pub const FIXED_CITATIONS: &[(&str, &str)] = &[
-    ("K0 and fugacity", "Weiss (1974), Mar. Chem. 2:203"),
-    ("KB", "Dickson (1990), Deep-Sea Res. 37:755"),
-    (
-        "KW, KP1–3, KSi",
-        "Millero (1995), Geochim. Cosmochim. Acta 59:661",
-    ),
-    ("KSO4", "Dickson (1990), J. Chem. Thermodyn. 22:113"),
-    (
-        "Total sulfate",
-        "Morris & Riley (1966), Deep-Sea Res. 13:699",
-    ),
-    ("Total fluoride", "Riley (1965), Deep-Sea Res. 12:219"),
-    (
-        "Calcite and aragonite solubility",
-        "Mucci (1983), Am. J. Sci. 283:780",
-    ),
-    (
-        "Total calcium",
-        "Riley & Tongudai (1967), Chem. Geol. 2:263",
-    ),
-    (
-        "Pressure corrections",
-        "Millero (1995), Geochim. Cosmochim. Acta 59:661",
-    ),
-    (
-        "Water vapour pressure",
-        "Weiss & Price (1980), Mar. Chem. 8:347",
-    ),
+pub const FIXED_CITATIONS: &[MethodCitation] = &[
+    MethodCitation {
+        quantity: "K0 and fugacity",
+        method: "Weiss",
+        citation: "Weiss (1974), Mar. Chem. 2:203",
+    },
+    MethodCitation {
+        quantity: "KB",
+        method: "Dickson",
+        citation: "Dickson (1990), Deep-Sea Res. 37:755",
+    },
+    MethodCitation {
+        quantity: "KW, KP1–3, KSi",
+        method: "Millero",
+        citation: "Millero (1995), Geochim. Cosmochim. Acta 59:661",
+    },
+    MethodCitation {
+        quantity: "KSO4",
+        method: "Dickson",
+        citation: "Dickson (1990), J. Chem. Thermodyn. 22:113",
+    },
+    MethodCitation {
+        quantity: "Total sulfate",
+        method: "Morris & Riley",
+        citation: "Morris & Riley (1966), Deep-Sea Res. 13:699",
+    },
+    MethodCitation {
+        quantity: "Total fluoride",
+        method: "Riley",
+        citation: "Riley (1965), Deep-Sea Res. 12:219",
+    },
+    MethodCitation {
+        quantity: "Calcite and aragonite solubility",
+        method: "Mucci",
+        citation: "Mucci (1983), Am. J. Sci. 283:780",
+    },
+    MethodCitation {
+        quantity: "Total calcium",
+        method: "Riley & Tongudai",
+        citation: "Riley & Tongudai (1967), Chem. Geol. 2:263",
+    },
+    MethodCitation {
+        quantity: "Pressure corrections",
+        method: "Millero",
+        citation: "Millero (1995), Geochim. Cosmochim. Acta 59:661",
+    },
+    MethodCitation {
+        quantity: "Water vapour pressure",
+        method: "Weiss & Price",
+        citation: "Weiss & Price (1980), Mar. Chem. 8:347",
+    },
 ];
 
 impl MethodSet {
-    /// Every constant with its source, for methods sections.
+    /// Every constant with its source, for methods sections: (quantity, citation).
     pub fn citations(&self) -> Vec<(String, String)> {
+        self.method_citations()
+            .into_iter()
+            .map(|c| (c.quantity.to_string(), c.citation.to_string()))
+            .collect()
+    }
+
+    /// Every constant with the method's name and its source, the selectable ones from the
+    /// catalogue and the fixed ones from [`FIXED_CITATIONS`].
+    pub fn method_citations(&self) -> Vec<MethodCitation> {
         let mut v = vec![
-            ("K1, K2".to_string(), self.k1k2.citation().to_string()),
-            ("Total boron".to_string(), self.boron.citation().to_string()),
-            ("KF".to_string(), self.kf.citation().to_string()),
+            MethodCitation {
+                quantity: "K1, K2",
+                method: self.k1k2.entry().method,
+                citation: self.k1k2.citation(),
+            },
+            MethodCitation {
+                quantity: "Total boron",
+                method: self.boron.entry().method,
+                citation: self.boron.citation(),
+            },
+            MethodCitation {
+                quantity: "KF",
+                method: self.kf.entry().method,
+                citation: self.kf.citation(),
+            },
         ];
-        v.extend(
-            FIXED_CITATIONS
-                .iter()
-                .map(|(a, b)| (a.to_string(), b.to_string())),
-        );
+        v.extend_from_slice(FIXED_CITATIONS);
         v
     }
 

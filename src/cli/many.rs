@@ -308,15 +308,6 @@ fn run_inner(args: &ReportArgs) -> Result<i32, String> {
             Err(f) => failed.push(f),
         }
     }
-    if args.site_list.is_none() && !failed.is_empty() {
-        let names: Vec<&str> = failed.iter().map(|f| f.file.as_str()).collect();
-        return Err(format!(
-            "no report written: {} of {} site(s) failed: {} (see the messages above)",
-            failed.len(),
-            listed.len(),
-            names.join(", ")
-        ));
-    }
     finish(args, &listed, ok, failed, keep_full)
 }
 
@@ -421,9 +412,14 @@ fn finish(
         eprintln!("wrote {} ({} pages)", out.display(), rendered.pages);
     }
     if !failed.is_empty() {
+        // A site of a list file is found by its line there; one of the command line by its
+        // file name alone.
         let names: Vec<String> = failed
             .iter()
-            .map(|f| format!("{} (line {})", f.file, f.line))
+            .map(|f| match args.site_list {
+                Some(_) => format!("{} (line {})", f.file, f.line),
+                None => f.file.clone(),
+            })
             .collect();
         eprintln!(
             "left out of the ranking: {} of {} site(s): {} (see the messages above)",

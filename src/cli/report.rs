@@ -172,8 +172,9 @@ impl ReportArgs {
     }
 }
 
-/// Runs `report`; returns the exit status. Sites are loaded and projected in parallel; when
-/// one fails, the message names it and nothing is written.
+/// Runs `report`; returns the exit status. Sites are loaded and projected in parallel; a
+/// site that fails is named with its error and left out of the ranking, the others are
+/// written, and the status is 3 (nothing is written when no site could be projected).
 pub fn run_report(args: &ReportArgs) -> i32 {
     use super::{EXIT_INPUT, EXIT_OK};
     if let Some(dir) = &args.dump_template {

@@ -635,12 +635,12 @@ fn season_baselines(loaded: &LoadedSite) -> Vec<SeasonBaseline> {
 fn methods(loaded: &LoadedSite, outlook: &Outlook, absolute_notes: &[String]) -> Methods {
     let chemistry: Vec<MethodEntry> = loaded
         .methods
-        .citations()
+        .method_citations()
         .into_iter()
-        .map(|(quantity, citation)| MethodEntry {
-            method: citation.split(" (").next().unwrap_or(&citation).to_string(),
-            quantity,
-            citation,
+        .map(|c| MethodEntry {
+            quantity: c.quantity.to_string(),
+            method: c.method.to_string(),
+            citation: c.citation.to_string(),
         })
         .collect();
     let mut notes: Vec<String> = Vec::new();

@@ -23,6 +23,9 @@ use crate::chem::{
 };
 use crate::{fsio, numfmt};
 
+mod rows;
+use rows::{Row, Rows};
+
 /// Exit status when every row was solved.
 pub const EXIT_OK: i32 = 0;
 
@@ -171,21 +174,28 @@ struct RowResult {
     notes: Vec<String>,
 }
 
-fn cell(rec: &csv::StringRecord, idx: Option<usize>) -> Option<&str> {
+fn cell<'a>(rec: &'a Row<'_>, idx: Option<usize>) -> Option<&'a str> {
     idx.and_then(|i| rec.get(i))
-        .map(str::trim)
+        .map(trim)
         .filter(|s| !s.is_empty())
 }
 
+/// `str::trim`, with the common case of a cell that starts and ends in a printable ASCII
+/// character (nothing to trim) answered from two bytes.
+fn trim(s: &str) -> &str {
+    let plain = |b: Option<&u8>| b.is_some_and(|b| b.is_ascii_graphic());
+    if plain(s.as_bytes().first()) && plain(s.as_bytes().last()) {
+        s
+    } else {
+        s.trim()
+    }
+}
+
 /// Parse an optional numeric cell; `Err` names the column and the text.
-fn number(
-    rec: &csv::StringRecord,
-    idx: Option<usize>,
-    column: &str,
-) -> Result<Option<f64>, String> {
+fn number(rec: &Row<'_>, idx: Option<usize>, column: &str) -> Result<Option<f64>, String> {
     match cell(rec, idx) {
         None => Ok(None),
-        Some(text) => match text.parse::<f64>() {
+        Some(text) => match numfmt::parse_f64(text) {
             Ok(v) if v.is_finite() => Ok(Some(v)),
             Ok(_) => Err(format!("{column}: '{text}' is not a finite number")),
             Err(_) => Err(format!("{column}: '{text}' is not a number")),
@@ -193,30 +203,36 @@ fn number(
     }
 }
 
-fn state_value(st: &CarbonateState, name: &str) -> f64 {
-    match name {
-        "ta" => st.ta,
-        "dic" => st.dic,
-        "ph_t" => st.ph_t,
-        "pco2" => st.pco2,
-        "fco2" => st.fco2,
-        "hco3" => st.hco3,
-        "co3" => st.co3,
-        "co2aq" => st.co2aq,
-        "omega_ar" => st.omega_ar,
-        "omega_ca" => st.omega_ca,
-        _ => st.revelle,
-    }
-}
+/// A solved quantity's reader and the decimals it is written with.
+type Quantity = (fn(&CarbonateState) -> f64, usize);
 
-/// Decimals written per output quantity (fixed, so that output bytes never depend on float
-/// printing).
+/// The solved quantities, in the order of the first [`QUANTITY_COUNT`] output columns, each
+/// with the decimals it is written with (fixed, so that output bytes never depend on float
+/// printing). Looked up by position: the writer does no name matching per row.
+const QUANTITIES: [Quantity; QUANTITY_COUNT] = [
+    (|s| s.ta, 4),
+    (|s| s.dic, 4),
+    (|s| s.ph_t, 6),
+    (|s| s.pco2, 4),
+    (|s| s.fco2, 4),
+    (|s| s.co2aq, 4),
+    (|s| s.hco3, 4),
+    (|s| s.co3, 4),
+    (|s| s.omega_ar, 5),
+    (|s| s.omega_ca, 5),
+    (|s| s.revelle, 4),
+];
+
+/// Output columns before `problem` and `pair_used`: the solved quantities.
+const QUANTITY_COUNT: usize = OUTPUT_COLUMNS.len() - 2;
+
+/// Decimals written for output quantity `name` (4 for a name that is not one).
 fn decimals_of(name: &str) -> usize {
-    match name {
-        "ph_t" => 6,
-        "omega_ar" | "omega_ca" => 5,
-        _ => 4,
-    }
+    OUTPUT_COLUMNS
+        .iter()
+        .position(|c| *c == name)
+        .and_then(|k| QUANTITIES.get(k))
+        .map_or(4, |q| q.1)
 }
 
 fn fixed(v: f64, decimals: usize) -> String {
@@ -224,7 +240,7 @@ fn fixed(v: f64, decimals: usize) -> String {
 }
 
 /// The conditions of one row, checked against the physical limits.
-fn conditions(rec: &csv::StringRecord, layout: &Layout) -> Result<Conditions, String> {
+fn conditions(rec: &Row<'_>, layout: &Layout) -> Result<Conditions, String> {
     let parse = |idx, col: &str| number(rec, idx, col);
     let temp_c = parse(layout.temp_c, "temp_c")?;
     let salinity = parse(layout.salinity, "salinity")?;
@@ -286,7 +302,7 @@ fn misfit_note(m: &measured::Misfit, pair: Pair) -> String {
 }
 
 /// Solve one row; never panics.
-fn solve_row(rec: &csv::StringRecord, layout: &Layout, methods: &MethodSet) -> RowResult {
+fn solve_row(rec: &Row<'_>, layout: &Layout, methods: &MethodSet) -> RowResult {
     let mut notes = Vec::new();
     if rec.len() != layout.input_width {
         notes.push(format!(
@@ -358,38 +374,36 @@ fn push_field(out: &mut Vec<u8>, field: &[u8]) {
 /// value (an in-place column then keeps the input's text). `problem` and `pair_used` are
 /// always written.
 fn push_output(out: &mut Vec<u8>, k: usize, row: &RowResult, scratch: &mut String) -> bool {
-    let name = OUTPUT_COLUMNS.get(k).copied().unwrap_or("problem");
-    match (name, &row.solved) {
-        ("problem", _) => {
-            scratch.clear();
-            for (i, n) in row.notes.iter().enumerate() {
-                if i > 0 {
-                    scratch.push_str("; ");
-                }
-                scratch.push_str(n);
-            }
-            push_field(out, scratch.as_bytes());
-            true
-        }
-        ("pair_used", Some((_, pair))) => {
-            use std::fmt::Write as _;
-            scratch.clear();
-            let _ = write!(scratch, "{pair}");
-            push_field(out, scratch.as_bytes());
-            true
-        }
-        ("pair_used", None) => true,
+    if let Some(&(value, decimals)) = QUANTITIES.get(k) {
         // Digits, '.' and '-' only: never quoted.
-        (_, Some((st, _))) => {
-            numfmt::push_fixed_bytes(out, state_value(st, name), decimals_of(name))
-        }
-        (_, None) => false,
+        return match &row.solved {
+            Some((st, _)) => numfmt::push_fixed_bytes(out, value(st), decimals),
+            None => false,
+        };
     }
+    if k == QUANTITY_COUNT {
+        // `problem`
+        scratch.clear();
+        for (i, n) in row.notes.iter().enumerate() {
+            if i > 0 {
+                scratch.push_str("; ");
+            }
+            scratch.push_str(n);
+        }
+        push_field(out, scratch.as_bytes());
+    } else if let Some((_, pair)) = &row.solved {
+        // `pair_used`, as `Pair`'s `Display` writes it (`ta+dic`); the column names hold no
+        // character that needs quoting.
+        out.extend_from_slice(pair.0.column().as_bytes());
+        out.push(b'+');
+        out.extend_from_slice(pair.1.column().as_bytes());
+    }
+    true
 }
 
 /// Solve one row and append its output line to `out`; returns whether it was solved.
 fn process(
-    rec: &csv::StringRecord,
+    rec: &Row<'_>,
     layout: &Layout,
     methods: &MethodSet,
     out: &mut Vec<u8>,
@@ -420,17 +434,19 @@ fn process(
 /// Rows per output buffer: each worker writes this many rows into its own buffer.
 const SUB_ROWS: usize = 1024;
 
-/// Solve `rows` and append their lines to `out`; returns the count of unsolved rows.
+/// Solve rows `range` of `rows` and append their lines to `out`; returns the count of
+/// unsolved rows.
 fn write_rows(
-    rows: &[csv::StringRecord],
+    rows: &Rows,
+    range: std::ops::Range<usize>,
     layout: &Layout,
     methods: &MethodSet,
     out: &mut Vec<u8>,
 ) -> u64 {
     let mut scratch = String::with_capacity(64);
     let mut unsolved = 0;
-    for rec in rows {
-        if !process(rec, layout, methods, out, &mut scratch) {
+    for rec in range.filter_map(|i| rows.row(i)) {
+        if !process(&rec, layout, methods, out, &mut scratch) {
             unsolved += 1;
         }
     }
@@ -448,40 +464,22 @@ pub struct SolveSummary {
 fn read_error(e: &csv::Error, header: &csv::StringRecord) -> String {
     let line = e.position().map(|p| p.line()).unwrap_or(0);
     if let csv::ErrorKind::Utf8 { err, .. } = e.kind() {
-        let name = header.get(err.field()).unwrap_or("?");
-        return format!(
-            "line {line}, column {} (`{name}`): the cell is not valid UTF-8 text; save the file as UTF-8 (nothing was written)",
-            err.field() + 1
-        );
+        return utf8_error(line, err.field(), header);
     }
     format!("line {line}: {e}")
 }
 
-/// Fill `chunk` with up to `CHUNK_ROWS` records (reusing those it holds); returns how many.
-fn read_chunk<R: Read>(
-    rdr: &mut csv::Reader<R>,
-    chunk: &mut Vec<csv::StringRecord>,
-    header: &csv::StringRecord,
-) -> Result<usize, String> {
-    let mut filled = 0;
-    while filled < CHUNK_ROWS {
-        if filled == chunk.len() {
-            chunk.push(csv::StringRecord::new());
-        }
-        let Some(rec) = chunk.get_mut(filled) else {
-            break;
-        };
-        match rdr.read_record(rec) {
-            Ok(true) => filled += 1,
-            Ok(false) => break,
-            Err(e) => return Err(read_error(&e, header)),
-        }
-    }
-    Ok(filled)
+/// The message for a cell (0-based `field`) that is not UTF-8.
+fn utf8_error(line: u64, field: usize, header: &csv::StringRecord) -> String {
+    let name = header.get(field).unwrap_or("?");
+    format!(
+        "line {line}, column {} (`{name}`): the cell is not valid UTF-8 text; save the file as UTF-8 (nothing was written)",
+        field + 1
+    )
 }
 
-/// A chunk read: its records (the first `.1` of them are rows), or the read error.
-type Chunk = Result<(Vec<csv::StringRecord>, usize), String>;
+/// A chunk read (empty at the end of the file), or the read error.
+type Chunk = Result<Rows, String>;
 /// A chunk solved: one byte buffer per `SUB_ROWS` rows, rows, unsolved rows.
 type Solved = Result<(Vec<Vec<u8>>, u64, u64), String>;
 
@@ -530,17 +528,20 @@ pub fn solve_stream<R: Read + Send, W: Write>(
 
     let (chunk_tx, chunk_rx) = mpsc::sync_channel::<Chunk>(1);
     let (solved_tx, solved_rx) = mpsc::sync_channel::<Solved>(1);
-    let (records_back, records_free) = mpsc::channel::<Vec<csv::StringRecord>>();
+    let (rows_back, rows_free) = mpsc::channel::<Rows>();
     let (bufs_back, bufs_free) = mpsc::channel::<Vec<Vec<u8>>>();
     let layout = &layout;
     let header = &header;
     thread::scope(|s| {
         // Stage 1: read and parse. Stops at the end, at an error, or when no one listens.
         s.spawn(move || {
+            let mut record = csv::ByteRecord::new();
             loop {
-                let mut chunk = records_free.try_recv().unwrap_or_default();
-                let msg = read_chunk(&mut rdr, &mut chunk, header).map(|n| (chunk, n));
-                let last = !matches!(msg, Ok((_, n)) if n > 0);
+                let mut rows = rows_free.try_recv().unwrap_or_default();
+                let msg = rows
+                    .fill(&mut rdr, &mut record, header, CHUNK_ROWS)
+                    .map(|()| rows);
+                let last = !matches!(&msg, Ok(rows) if rows.len() > 0);
                 if chunk_tx.send(msg).is_err() || last {
                     return;
                 }
@@ -549,19 +550,21 @@ pub fn solve_stream<R: Read + Send, W: Write>(
         // Stage 2: solve each chunk in parallel, in `SUB_ROWS` parts written in input order.
         s.spawn(move || {
             for msg in chunk_rx {
-                let solved = msg.map(|(chunk, n)| {
-                    let rows = chunk.get(..n).unwrap_or_default();
+                let solved = msg.map(|rows| {
+                    let n = rows.len();
                     let mut bufs = bufs_free.try_recv().unwrap_or_default();
                     bufs.resize_with(n.div_ceil(SUB_ROWS), || Vec::with_capacity(SUB_ROWS * 256));
-                    let unsolved = rows
-                        .par_chunks(SUB_ROWS)
-                        .zip(bufs.par_iter_mut())
+                    let unsolved = bufs
+                        .par_iter_mut()
+                        .enumerate()
                         .map(|(part, buf)| {
                             buf.clear();
-                            write_rows(part, layout, methods, buf)
+                            let start = part * SUB_ROWS;
+                            let range = start..n.min(start + SUB_ROWS);
+                            write_rows(&rows, range, layout, methods, buf)
                         })
                         .sum::<u64>();
-                    let _ = records_back.send(chunk);
+                    let _ = rows_back.send(rows);
                     (bufs, n as u64, unsolved)
                 });
                 if solved_tx.send(solved).is_err() {
