@@ -73,6 +73,7 @@ fn ensemble_off_projection_reproduces_pyco2sys_table() {
             pco2,
             measured: None,
             unit: None,
+            source: None,
         }
     };
     let obs = Observed::noaa();

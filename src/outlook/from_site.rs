@@ -264,6 +264,8 @@ fn record_of(
                 u16::try_from(t.hour() * 60 + t.minute()).unwrap_or(0)
             }),
         }),
+        // Matched by `site_input` when the site has source water.
+        source: None,
     })
 }
 
