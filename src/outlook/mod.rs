@@ -23,6 +23,7 @@ pub mod projection;
 pub mod result;
 pub mod rng;
 pub mod scenario;
+pub mod source_match;
 pub mod source_water;
 pub mod site_specs;
 pub mod thermal;
