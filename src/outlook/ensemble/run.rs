@@ -9,7 +9,7 @@ use rayon::prelude::*;
 use crate::chem::{Constants, Perturbation};
 
 use super::super::projection::{Start, YearConditions, project_state, solve_projected};
-use super::super::result::{QuantilePoint, Quantiles, Quantity};
+use super::super::result::{QuantilePoint, Quantiles, Quantity, RuleComparison};
 use super::super::rng::Xoshiro256;
 use super::super::warming::warming_factor;
 use super::super::{OutlookError, ProjectionSettings, SiteInput};
@@ -660,7 +660,8 @@ pub fn run(
     let total: u64 =
         (s.pathways.len() * prep.groups.len()) as u64 * s.ensemble.members.max(1) as u64 * nk;
     progress.start(total);
-    let work = || -> (Vec<Central>, Vec<TaskOut>) {
+    let has_source = site.records.iter().any(|r| r.source.is_some());
+    let work = || -> (Vec<Central>, Vec<TaskOut>, Vec<RuleComparison>) {
         let centrals: Vec<Central> = (0..s.pathways.len())
             .map(|p| project_all(&prep, p, s.mode))
             .collect();
@@ -679,9 +680,14 @@ pub fn run(
                 },
             })
             .collect();
-        (centrals, outs)
+        let rules = if has_source {
+            super::rules::compare_rules(&prep, &centrals)
+        } else {
+            Vec::new()
+        };
+        (centrals, outs, rules)
     };
-    let (centrals, outs) = match s.ensemble.threads {
+    let (centrals, outs, rules) = match s.ensemble.threads {
         Some(n) => rayon::ThreadPoolBuilder::new()
             .num_threads(n)
             .build()
@@ -689,5 +695,7 @@ pub fn run(
             .install(work),
         None => work(),
     };
-    Ok(assemble(&prep, &centrals, &outs))
+    let mut outlook = assemble(&prep, &centrals, &outs);
+    outlook.rule_comparison = rules;
+    Ok(outlook)
 }
