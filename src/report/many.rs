@@ -93,6 +93,7 @@ pub fn summarise(site: &SiteReport, horizons: &[i32]) -> SiteReport {
     s.samples.clear();
     s.local_scenarios.clear();
     s.probabilities.clear();
+    s.projection_rules.clear();
     s.methods.chemistry.clear();
     s.methods.notes.clear();
     for p in &mut s.projection {
