@@ -82,6 +82,13 @@ impl MatchRule {
     }
 }
 
+/// The offset rule, stated once: the report's methods and `docs/site-format.md` repeat it
+/// verbatim (`tests/docs_agree.rs`).
+pub const OFFSET_RULE: &str = "each reef record's TA and DIC offsets are taken against the \
+     source water of the same season and local clock hour when the source has readings in that \
+     hour, else against the source's season mean (else, for a season the source never sampled, \
+     against the mean of all its rows)";
+
 /// Plausible magnitude of a reef record's TA offset from its source water, µmol/kg.
 /// Common practice: a guard against a wrong source file or unit slip, wider than the
 /// reef-flat departures from offshore water reported in reef metabolism studies (diel TA

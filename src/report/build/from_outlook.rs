@@ -551,24 +551,26 @@ pub(super) fn notes(outlook: &Outlook, absolute_notes: &[String]) -> Vec<String>
         ));
     }
     if !outlook.rule_comparison.is_empty() {
-        notes.push(SOURCE_WATER_METHOD.to_string());
+        notes.push(source_water_method());
     }
     notes.extend(outlook.notes.iter().map(|n| note_text(outlook, n)));
     notes
 }
 
 /// The methods note of a site with offshore source water: the offset rule and its sources.
-pub const SOURCE_WATER_METHOD: &str = "Source water apart from reef metabolism: each reef \
-     record's TA and DIC offsets from the site's offshore source water are taken against the \
-     source water of the same season and local clock hour when the source has readings in that \
-     hour, else against the source's season mean (else the mean of all its rows). Under the \
-     source-offsets rule the source water follows the atmosphere and the offsets are held; the \
-     reef water is solved again from source TA + dTA and source DIC + dDIC, so that diel \
-     extremes of pCO₂ widen as the buffer capacity falls (Shaw, McNeil, Tilbrook, Matear & \
-     Bates 2013, Global Change Biology 19:1632–1641; buffer factors of Egleston, Sabine & \
-     Morel 2010, Global Biogeochemical Cycles 24, GB1002). The table \"Projection rules \
-     compared\" shows how far the ratio, additive and source-offsets rules disagree: \
-     structural uncertainty, not part of the ensemble ranges.";
+fn source_water_method() -> String {
+    format!(
+        "Source water apart from reef metabolism: {}. Under the source-offsets rule the source \
+         water follows the atmosphere and the offsets are held; the reef water is solved again \
+         from source TA + dTA and source DIC + dDIC, so that diel extremes of pCO₂ widen as the \
+         buffer capacity falls (Shaw, McNeil, Tilbrook, Matear & Bates 2013, Global Change \
+         Biology 19:1632–1641; buffer factors of Egleston, Sabine & Morel 2010, Global \
+         Biogeochemical Cycles 24, GB1002). The table \"Projection rules compared\" shows how \
+         far the ratio, additive and source-offsets rules disagree: structural uncertainty, \
+         not part of the ensemble ranges.",
+        crate::outlook::source_water::OFFSET_RULE
+    )
+}
 
 /// One of the outlook's notes in the report's words: relationships by their names, symbols
 /// as printed elsewhere in the report.
