@@ -172,7 +172,11 @@ fn source_offsets_projection_reproduces_pyco2sys_table() {
         Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/reference/source_offsets_reference.csv");
     let mut r = csv::Reader::from_path(&path).expect("source_offsets_reference.csv is committed");
     let rows: Vec<csv::StringRecord> = r.records().map(|x| x.expect("row")).collect();
-    assert_eq!(rows.len(), 108, "2 rules x 2 pathways x 3 records x 9 years");
+    assert_eq!(
+        rows.len(),
+        108,
+        "2 rules x 2 pathways x 3 records x 9 years"
+    );
     let obs = Observed::noaa();
     let methods = MethodSet::default();
     let mut worst = (0.0f64, 0.0f64, 0.0f64);
@@ -230,14 +234,22 @@ fn source_offsets_projection_reproduces_pyco2sys_table() {
         .expect("projects");
         let st = pt.state;
         assert!((st.ta - num(row, 7)).abs() < 0.1, "{row:?}: TA {}", st.ta);
-        assert!((st.dic - num(row, 8)).abs() < 0.1, "{row:?}: DIC {}", st.dic);
+        assert!(
+            (st.dic - num(row, 8)).abs() < 0.1,
+            "{row:?}: DIC {}",
+            st.dic
+        );
         let rel_pco2 = (st.pco2 / num(row, 9) - 1.0).abs();
         let d_ph = (st.ph_t - num(row, 10)).abs();
         let rel_om = (st.omega_ar / num(row, 11) - 1.0).abs();
         assert!(rel_pco2 < 1e-3, "{row:?}: pCO2 {}", st.pco2);
         assert!(d_ph < 5e-4, "{row:?}: pH {}", st.ph_t);
         assert!(rel_om < 1e-3, "{row:?}: Omega_ar {}", st.omega_ar);
-        worst = (worst.0.max(rel_pco2), worst.1.max(d_ph), worst.2.max(rel_om));
+        worst = (
+            worst.0.max(rel_pco2),
+            worst.1.max(d_ph),
+            worst.2.max(rel_om),
+        );
     }
     eprintln!(
         "source offsets vs PyCO2SYS: worst pCO2 {:.2e} (rel), pH {:.2e}, Omega_ar {:.2e} (rel)",

@@ -494,21 +494,13 @@ pub fn project_record(
     rec.validate()?;
     let anchor = RecordAnchor::new(rec, pathway, observed)?;
     let yc = YearConditions::new(rec, pathway, observed, warming, methods, year)?;
-    let state = project_state(
-        rec,
-        &anchor,
-        &Start::central(rec),
-        &yc,
-        None,
-        mode,
-        offsets,
-    )
-    .map_err(|message| OutlookError::Solve {
-        record: rec.label.clone(),
-        pathway: pathway.name.clone(),
-        year,
-        message,
-    })?;
+    let state = project_state(rec, &anchor, &Start::central(rec), &yc, None, mode, offsets)
+        .map_err(|message| OutlookError::Solve {
+            record: rec.label.clone(),
+            pathway: pathway.name.clone(),
+            year,
+            message,
+        })?;
     let pco2_sea = match mode {
         Disequilibrium::SourceOffsets => state.pco2,
         _ => anchor.project_pco2(rec.pco2, yc.pco2_air, mode),

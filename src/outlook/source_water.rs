@@ -195,9 +195,11 @@ pub fn offsets_held_state(
     offsets: Option<&Offsets>,
 ) -> Result<CarbonateState, String> {
     let k = |c: &Constants| pt.map_or(*c, |p| c.perturbed(p));
-    let p_base = sw
-        .follows
-        .apply(start.source_pco2, anchor.air_own_sample, anchor.air_reef_sample);
+    let p_base = sw.follows.apply(
+        start.source_pco2,
+        anchor.air_own_sample,
+        anchor.air_reef_sample,
+    );
     let p_year = sw
         .follows
         .apply(start.source_pco2, anchor.air_own_sample, year.air);
@@ -208,10 +210,14 @@ pub fn offsets_held_state(
         ));
     }
     let solve = |ta: f64, p: f64, c: &Constants, what: &str| {
-        chem::solve_pair(Input::Ta(ta), Input::Pco2(p), &k(c))
-            .map_err(|e| format!("{what}: {e}"))
+        chem::solve_pair(Input::Ta(ta), Input::Pco2(p), &k(c)).map_err(|e| format!("{what}: {e}"))
     };
-    let source_then = solve(start.source_ta, p_base, &year.k_sample, "source water at sampling")?;
+    let source_then = solve(
+        start.source_ta,
+        p_base,
+        &year.k_sample,
+        "source water at sampling",
+    )?;
     let reef_then = solve(
         start.reef_ta,
         start.reef_pco2,

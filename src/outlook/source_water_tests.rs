@@ -78,7 +78,10 @@ fn buffer_factors_match_egleston_2010_and_amplify_the_diel_swing() {
     assert!(later.0 > now.0, "pCO2 swing grows: {now:?} -> {later:?}");
     assert!(later.1 > now.1, "[H+] swing grows: {now:?} -> {later:?}");
     assert!(later.2 < now.2, "CO3 swing shrinks: {now:?} -> {later:?}");
-    assert!(later.3 < now.3, "Omega_ar swing shrinks: {now:?} -> {later:?}");
+    assert!(
+        later.3 < now.3,
+        "Omega_ar swing shrinks: {now:?} -> {later:?}"
+    );
 }
 
 fn record(ta: f64, pco2: f64, source: Option<SourceWater>) -> ProjectionRecord {
@@ -177,7 +180,12 @@ fn held_offsets_reproduce_the_source_rule_and_widen_the_pco2_swing() {
             .state
         };
         let (day, night) = (at(-100.0), at(100.0));
-        (night.pco2 - day.pco2, day.omega_ar - night.omega_ar, day, night)
+        (
+            night.pco2 - day.pco2,
+            day.omega_ar - night.omega_ar,
+            day,
+            night,
+        )
     };
     let (p_now, om_now, day, _) = swing(2024);
     let reef_day = state(2280.0, 1860.0, &k);
@@ -187,7 +195,10 @@ fn held_offsets_reproduce_the_source_rule_and_widen_the_pco2_swing() {
         p_2100 > 1.5 * p_now,
         "pCO2 swing {p_now:.0} -> {p_2100:.0} uatm"
     );
-    assert!(om_2100 < om_now, "Omega_ar swing {om_now:.3} -> {om_2100:.3}");
+    assert!(
+        om_2100 < om_now,
+        "Omega_ar swing {om_now:.3} -> {om_2100:.3}"
+    );
     // The offsets are held: dTA and dDIC of 2100 equal those at sampling.
     assert!((day_2100.ta - 2280.0).abs() < 1e-6 && (night_2100.ta - 2280.0).abs() < 1e-6);
     assert!((night_2100.dic - day_2100.dic - 200.0).abs() < 1e-6);

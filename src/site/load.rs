@@ -436,9 +436,8 @@ impl<'a> Run<'a> {
     pub fn finish(mut self, summaries: Vec<RecordSummary>) -> Result<Output, LoadFailure> {
         let mut samples = std::mem::take(&mut self.samples);
         records::retain_kept(&mut samples, &self.drop);
-        let (source_samples, samples): (Vec<Sample>, Vec<Sample>) = samples
-            .into_iter()
-            .partition(|smp| self.is_source_row(smp));
+        let (source_samples, samples): (Vec<Sample>, Vec<Sample>) =
+            samples.into_iter().partition(|smp| self.is_source_row(smp));
         let baseline = baseline::compute(
             &samples,
             &self.res.seasons,

@@ -466,8 +466,22 @@ fn check_source_water(c: &mut Checker<'_>, site: &SiteFile) {
         let (lo, hi) = SOURCE_TA_DIC_RANGE;
         match (sw.ta_umol_kg, sw.dic_umol_kg) {
             (Some(ta), Some(dic)) => {
-                c.range("source_water.ta_umol_kg", "offshore TA", ta, lo, hi, " µmol/kg");
-                c.range("source_water.dic_umol_kg", "offshore DIC", dic, lo, hi, " µmol/kg");
+                c.range(
+                    "source_water.ta_umol_kg",
+                    "offshore TA",
+                    ta,
+                    lo,
+                    hi,
+                    " µmol/kg",
+                );
+                c.range(
+                    "source_water.dic_umol_kg",
+                    "offshore DIC",
+                    dic,
+                    lo,
+                    hi,
+                    " µmol/kg",
+                );
                 if sw.source.as_deref().is_none_or(|s| s.trim().is_empty()) {
                     c.error(
                         "source_water",
@@ -489,10 +503,24 @@ fn check_source_water(c: &mut Checker<'_>, site: &SiteFile) {
             (None, None) => {}
         }
         if let Some(t) = sw.temp_c {
-            c.range("source_water.temp_c", "offshore temperature", t, -2.0, 40.0, " °C");
+            c.range(
+                "source_water.temp_c",
+                "offshore temperature",
+                t,
+                -2.0,
+                40.0,
+                " °C",
+            );
         }
         if let Some(v) = sw.salinity {
-            c.range("source_water.salinity", "offshore salinity", v, 1.0, 45.0, "");
+            c.range(
+                "source_water.salinity",
+                "offshore salinity",
+                v,
+                1.0,
+                45.0,
+                "",
+            );
         }
         if let Some(st) = &sw.station
             && st.trim().is_empty()
@@ -504,10 +532,9 @@ fn check_source_water(c: &mut Checker<'_>, site: &SiteFile) {
             );
         }
     }
-    let has_source = marked > 0
-        || spec.is_some_and(|sw| sw.station.is_some() || sw.has_stated_values());
-    if site.projection.disequilibrium == super::schema::Disequilibrium::SourceOffsets
-        && !has_source
+    let has_source =
+        marked > 0 || spec.is_some_and(|sw| sw.station.is_some() || sw.has_stated_values());
+    if site.projection.disequilibrium == super::schema::Disequilibrium::SourceOffsets && !has_source
     {
         c.error(
             "projection.disequilibrium",

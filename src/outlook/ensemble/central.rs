@@ -6,7 +6,9 @@ use rayon::prelude::*;
 
 use crate::chem::{CarbonateState, Constants, Input};
 
-use super::super::projection::{Disequilibrium, RecordAnchor, Start, YearConditions, project_state};
+use super::super::projection::{
+    Disequilibrium, RecordAnchor, Start, YearConditions, project_state,
+};
 use super::super::{OutlookError, ProjectionRecord, SiteInput};
 use super::prepare::Prepared;
 use super::settings::input_err;

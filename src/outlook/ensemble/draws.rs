@@ -3,8 +3,8 @@
 use crate::chem::{self, Constants, Input, MethodSet, ORR2018, Perturbation};
 
 use super::super::ProjectionRecord;
-use super::super::source_water::SourceWater;
 use super::super::projection::shifted;
+use super::super::source_water::SourceWater;
 use super::settings::EnsembleSettings;
 
 /// Shifts of the constants for eight standard normal deviates, in the order pK0, pK1, pK2,

@@ -14,7 +14,11 @@ use super::prepare::{Group, Prepared};
 fn group_mean(g: &Group, central: &Central, k: usize) -> f64 {
     let (mut sum, mut w_all) = (0.0, 0.0);
     for (&r, &w) in g.records.iter().zip(&g.weights) {
-        if let Some(x) = central.get(0, r, k).map(|v| v[OMEGA_AR]).filter(|x| x.is_finite()) {
+        if let Some(x) = central
+            .get(0, r, k)
+            .map(|v| v[OMEGA_AR])
+            .filter(|x| x.is_finite())
+        {
             sum += w * x;
             w_all += w;
         }
@@ -34,10 +38,7 @@ pub(super) fn compare_rules(prep: &Prepared<'_>, centrals: &[Central]) -> Vec<Ru
             .map(|m| (m, project_all(prep, p, m)))
             .collect();
         let by_rule = |m: Disequilibrium| -> &Central {
-            others
-                .iter()
-                .find(|(x, _)| *x == m)
-                .map_or(own, |(_, c)| c)
+            others.iter().find(|(x, _)| *x == m).map_or(own, |(_, c)| c)
         };
         for g in &prep.groups {
             for (&year, &k) in s.years.iter().zip(&prep.horizon_knot) {
