@@ -35,6 +35,7 @@ fn invented_site() -> SiteInput {
                 pco2: 415.0 + 15.0 * phase.cos() + 3.0 * jf,
                 measured: None,
                 unit: None,
+                source: None,
             });
         }
     }

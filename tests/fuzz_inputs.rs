@@ -162,9 +162,10 @@ const DEMO_SITES: [&str; 3] = [
     "sites/tala-vesi-lagoon.toml",
     "sites/tala-vesi-pass.toml",
 ];
-const DEMO_RECORDS: [(&str, usize); 5] = [
+const DEMO_RECORDS: [(&str, usize); 6] = [
     ("forereef-bottles.csv", 40),
     ("lagoon-bottles.csv", 40),
+    ("lagoon-offshore.csv", 40),
     ("lagoon-sensor.csv", 150),
     ("upwelling-bottles-lab.csv", 40),
     ("upwelling-bottles.csv", 40),

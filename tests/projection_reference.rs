@@ -73,6 +73,7 @@ fn ensemble_off_projection_reproduces_pyco2sys_table() {
             pco2,
             measured: None,
             unit: None,
+            source: None,
         }
     };
     let obs = Observed::noaa();
@@ -154,4 +155,104 @@ fn pathway_values_at_2050_and_2100_match_meinshausen_2020() {
             "{name} 2100"
         );
     }
+}
+
+/// Outside check (issue 12): `tests/reference/source_offsets_reference.csv`, generated with
+/// PyCO2SYS 1.8.3.4 by `tests/reference/make_source_offsets_reference.py` (beside the table;
+/// the method is written out in its docstring): three invented reef records (day, mean,
+/// night) with their TA/DIC offsets from an invented offshore source water held, the source
+/// following the atmosphere by the ratio and additive rules under SSP2-4.5 and SSP5-8.5,
+/// warming off, source and reef at their own temperatures, salinities and pressures. The
+/// project's "source offsets" rule must reproduce TA and DIC (±0.1 µmol/kg), pH_T
+/// (±0.0005), pCO2 and Omega_ar (±0.1 %).
+#[test]
+fn source_offsets_projection_reproduces_pyco2sys_table() {
+    use calcisite::outlook::source_water::{Follows, MatchRule, SourceWater};
+    let path =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/reference/source_offsets_reference.csv");
+    let mut r = csv::Reader::from_path(&path).expect("source_offsets_reference.csv is committed");
+    let rows: Vec<csv::StringRecord> = r.records().map(|x| x.expect("row")).collect();
+    assert_eq!(
+        rows.len(),
+        108,
+        "2 rules x 2 pathways x 3 records x 9 years"
+    );
+    let obs = Observed::noaa();
+    let methods = MethodSet::default();
+    let mut worst = (0.0f64, 0.0f64, 0.0f64);
+    for row in &rows {
+        let follows = match row.get(0) {
+            Some("ratio") => Follows::Ratio,
+            _ => Follows::Additive,
+        };
+        let pathway = Pathway::builtin(row.get(1).expect("pathway")).expect("built-in pathway");
+        let ta = match row.get(2) {
+            Some("day") => 2280.0,
+            Some("mean") => 2295.0,
+            _ => 2310.0,
+        };
+        let year: i32 = row.get(3).and_then(|v| v.parse().ok()).expect("year");
+        let source = SourceWater {
+            rule: MatchRule::SameHour,
+            follows,
+            sample_year: 2024,
+            temp_c: 28.0,
+            salinity: 35.2,
+            pressure_dbar: 1.0,
+            silicate: 1.2,
+            phosphate: 0.12,
+            ta: 2300.0,
+            dic: 1975.0,
+            pco2: num(row, 4),
+            rows: 1,
+        };
+        let rec = ProjectionRecord {
+            label: "invented reef record".into(),
+            season: 0,
+            sample_year: 2024,
+            temp_c: 29.5,
+            salinity: 35.3,
+            pressure_dbar: 2.0,
+            silicate: 2.0,
+            phosphate: 0.2,
+            ta,
+            pco2: num(row, 5),
+            measured: None,
+            unit: None,
+            source: Some(source),
+        };
+        let pt = project_record(
+            &rec,
+            &pathway,
+            &obs,
+            None,
+            &methods,
+            Disequilibrium::SourceOffsets,
+            None,
+            year,
+        )
+        .expect("projects");
+        let st = pt.state;
+        assert!((st.ta - num(row, 7)).abs() < 0.1, "{row:?}: TA {}", st.ta);
+        assert!(
+            (st.dic - num(row, 8)).abs() < 0.1,
+            "{row:?}: DIC {}",
+            st.dic
+        );
+        let rel_pco2 = (st.pco2 / num(row, 9) - 1.0).abs();
+        let d_ph = (st.ph_t - num(row, 10)).abs();
+        let rel_om = (st.omega_ar / num(row, 11) - 1.0).abs();
+        assert!(rel_pco2 < 1e-3, "{row:?}: pCO2 {}", st.pco2);
+        assert!(d_ph < 5e-4, "{row:?}: pH {}", st.ph_t);
+        assert!(rel_om < 1e-3, "{row:?}: Omega_ar {}", st.omega_ar);
+        worst = (
+            worst.0.max(rel_pco2),
+            worst.1.max(d_ph),
+            worst.2.max(rel_om),
+        );
+    }
+    eprintln!(
+        "source offsets vs PyCO2SYS: worst pCO2 {:.2e} (rel), pH {:.2e}, Omega_ar {:.2e} (rel)",
+        worst.0, worst.1, worst.2
+    );
 }

@@ -35,6 +35,8 @@ pub fn site_input(loaded: &LoadedSite) -> SiteInput {
     let fit = loaded.baseline.ta_salinity.as_ref();
     let folder = site_folder(loaded);
     let mut stations: Vec<&str> = Vec::new();
+    // Problems with the source water are reported by `projection_settings`, which runs first.
+    let sources = super::source_match::source_table(loaded).ok().flatten();
     let records: Vec<ProjectionRecord> = loaded
         .samples
         .iter()
@@ -43,6 +45,7 @@ pub fn site_input(loaded: &LoadedSite) -> SiteInput {
             if let Some(u) = r.unit.as_mut() {
                 u.station = station_number(&mut stations, &smp.station);
             }
+            r.source = sources.as_ref().and_then(|t| t.match_sample(smp));
             Some(r)
         })
         .collect();
@@ -130,6 +133,13 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
     // problem at its key of the site file.
     let specs = super::site_specs::check_specs(loaded)?;
     let pr = &site_file.projection;
+    // The source water: covering the reef's seasons, offsets within the plausible range.
+    if let Some(table) = super::source_match::source_table(loaded)? {
+        let bad = table.check_offsets(&loaded.samples, 10);
+        if bad.has_errors() {
+            return Err(bad);
+        }
+    }
 
     // Uncertainty, thresholds, calcification, scenarios.
     let u = &site_file.uncertainty;
@@ -193,6 +203,7 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
         mode: match pr.disequilibrium {
             schema::Disequilibrium::Ratio => Disequilibrium::Ratio,
             schema::Disequilibrium::Additive => Disequilibrium::Additive,
+            schema::Disequilibrium::SourceOffsets => Disequilibrium::SourceOffsets,
         },
         scenarios,
         ensemble,
@@ -264,6 +275,8 @@ fn record_of(
                 u16::try_from(t.hour() * 60 + t.minute()).unwrap_or(0)
             }),
         }),
+        // Matched by `site_input` when the site has source water.
+        source: None,
     })
 }
 

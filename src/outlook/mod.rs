@@ -24,6 +24,8 @@ pub mod result;
 pub mod rng;
 pub mod scenario;
 pub mod site_specs;
+pub mod source_match;
+pub mod source_water;
 pub mod thermal;
 pub mod thresholds;
 pub mod warming;
@@ -40,7 +42,8 @@ pub use from_site::from_loaded_site;
 pub use output::{OutputFormat, OutputTable};
 pub use pathways::{Observed, Pathway, PathwayError, Ssp};
 pub use projection::{
-    Disequilibrium, Measurement, ProjectedPoint, ProjectionRecord, SamplingUnit, project_record,
+    Disequilibrium, Measurement, ProjectedPoint, ProjectionRecord, SamplingUnit, Start,
+    project_record, project_state,
 };
 pub use result::{
     BelowProbability, Criterion, Crossing, CrossingGroup, CrossingKind, CrossingYears, GroupId,

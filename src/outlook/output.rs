@@ -430,6 +430,21 @@ struct JsonDoc<'a> {
     notes: Vec<String>,
     #[serde(skip_serializing_if = "Option::is_none")]
     thermal_stress: Option<super::thermal::output::JsonHeat<'a>>,
+    /// Structural uncertainty (sites with source water): mean Omega_ar of the records
+    /// projected on their own by each rule, central values.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    projection_rules: Vec<JsonRules<'a>>,
+}
+
+#[derive(Serialize)]
+struct JsonRules<'a> {
+    pathway: &'a str,
+    season: &'a str,
+    year: i32,
+    omega_ar_ratio: Option<f64>,
+    omega_ar_additive: Option<f64>,
+    omega_ar_source_offsets: Option<f64>,
+    spread: Option<f64>,
 }
 
 #[derive(Serialize)]
@@ -721,6 +736,19 @@ impl<'a> From<&'a Outlook> for JsonDoc<'a> {
             },
             notes: o.notes.iter().map(|n| n.to_string()).collect(),
             thermal_stress: o.heat.as_ref().map(Into::into),
+            projection_rules: o
+                .rule_comparison
+                .iter()
+                .map(|r| JsonRules {
+                    pathway: o.pathway(r.pathway).map_or("", |p| p.name.as_str()),
+                    season: o.group_label(r.group),
+                    year: r.year,
+                    omega_ar_ratio: rounded(r.omega_ar[0], 4),
+                    omega_ar_additive: rounded(r.omega_ar[1], 4),
+                    omega_ar_source_offsets: rounded(r.omega_ar[2], 4),
+                    spread: rounded(r.spread(), 4),
+                })
+                .collect(),
         }
     }
 }

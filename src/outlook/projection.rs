@@ -13,6 +13,11 @@
 //!    `pCO2_sea(y)` are solved at the in-situ temperature, salinity and pressure; a local DIC
 //!    offset is then applied by re-solving from TA and DIC + offset.
 //!
+//! A third rule, "source offsets", holds the record's TA and DIC offsets from its offshore
+//! source water while the source water follows the atmosphere ([`super::source_water`]).
+//! [`project_state`] is the one function that projects a record's state in a year under any
+//! of the three; every per-record projection goes through it.
+//!
 //! The sampling-year atmosphere is the observed record when the sampling year lies in it;
 //! otherwise it is the pathway's own value, so that under every pathway the projection for
 //! the sampling year returns the measured pCO2 (ratio and additive modes alike).
@@ -20,11 +25,12 @@
 use std::fmt;
 use std::str::FromStr;
 
-use crate::chem::{self, CarbonateState, Conditions, Constants, Input, MethodSet};
+use crate::chem::{self, CarbonateState, Conditions, Constants, Input, MethodSet, Perturbation};
 
 use super::OutlookError;
 use super::pathways::{Observed, Pathway};
 use super::scenario::Offsets;
+use super::source_water::{HeldStart, SourceAnchor, SourceWater, SourceYear, offsets_held_state};
 use super::warming::Warming;
 
 /// How the record's air–sea disequilibrium is carried into the future.
@@ -36,6 +42,10 @@ pub enum Disequilibrium {
     Ratio,
     /// `pCO2_sea(y) = pCO2_air(y) + (pCO2_sea − pCO2_air)` at sampling.
     Additive,
+    /// The record's TA and DIC offsets from its offshore source water are held while the
+    /// source water follows the atmosphere ([`super::source_water`]); needs a source water
+    /// for every record.
+    SourceOffsets,
 }
 
 impl Disequilibrium {
@@ -44,8 +54,16 @@ impl Disequilibrium {
         match self {
             Disequilibrium::Ratio => "ratio",
             Disequilibrium::Additive => "additive",
+            Disequilibrium::SourceOffsets => "source offsets",
         }
     }
+
+    /// The three rules, in the order outputs list them.
+    pub const ALL: [Disequilibrium; 3] = [
+        Disequilibrium::Ratio,
+        Disequilibrium::Additive,
+        Disequilibrium::SourceOffsets,
+    ];
 }
 
 impl fmt::Display for Disequilibrium {
@@ -60,8 +78,11 @@ impl FromStr for Disequilibrium {
         match s.trim().to_ascii_lowercase().as_str() {
             "ratio" => Ok(Disequilibrium::Ratio),
             "additive" => Ok(Disequilibrium::Additive),
+            "source offsets" | "source-offsets" | "source_offsets" => {
+                Ok(Disequilibrium::SourceOffsets)
+            }
             other => Err(format!(
-                "unknown disequilibrium mode \"{other}\" (expected \"ratio\" or \"additive\")"
+                "unknown disequilibrium mode \"{other}\" (expected \"ratio\", \"additive\" or \"source offsets\")"
             )),
         }
     }
@@ -126,6 +147,8 @@ pub struct ProjectionRecord {
     pub measured: Option<Measurement>,
     /// The station-day the record belongs to (`None`: the record is a unit of its own).
     pub unit: Option<SamplingUnit>,
+    /// The offshore source water the record is measured against (`None`: the site has none).
+    pub source: Option<SourceWater>,
 }
 
 /// One station on one local calendar day. Seasonal means weight every sampling unit
@@ -175,6 +198,27 @@ impl ProjectionRecord {
                 )));
             }
         }
+        if let Some(sw) = &self.source {
+            let checks: [(&str, f64, f64, f64); 4] = [
+                ("source-water temp_c", sw.temp_c, -2.0, 45.0),
+                ("source-water salinity", sw.salinity, 1.0, 50.0),
+                ("source-water ta", sw.ta, 100.0, 5000.0),
+                (
+                    "source-water pco2",
+                    sw.pco2,
+                    MIN_PROJECTED_PCO2_UATM,
+                    10_000.0,
+                ),
+            ];
+            for (field, v, lo, hi) in checks {
+                if !v.is_finite() || v < lo || v > hi {
+                    return Err(OutlookError::Input(format!(
+                        "{}: {field} = {v} is outside the range the projection accepts ({lo} to {hi})",
+                        self.label
+                    )));
+                }
+            }
+        }
         if let Some(m) = &self.measured {
             for (inp, sd) in [(m.a, m.sd_a), (m.b, m.sd_b)] {
                 let v = inp.value();
@@ -211,6 +255,8 @@ pub struct RecordAnchor {
     pub xco2_sample_ppm: f64,
     /// pCO2 of air in equilibrium with the record's water in the sampling year, µatm.
     pub pco2_air_sample: f64,
+    /// The source water's air pCO2 values (`None`: the record has no source water).
+    pub source: Option<SourceAnchor>,
 }
 
 impl RecordAnchor {
@@ -223,17 +269,37 @@ impl RecordAnchor {
         let x = pathway.xco2_ppm(observed, rec.sample_year).map_err(|e| {
             OutlookError::Input(format!("{}: sampling-year atmosphere: {e}", rec.label))
         })?;
+        let source = match &rec.source {
+            Some(sw) => {
+                let own = pathway.xco2_ppm(observed, sw.sample_year).map_err(|e| {
+                    OutlookError::Input(format!(
+                        "{}: source-water sampling-year atmosphere: {e}",
+                        rec.label
+                    ))
+                })?;
+                Some(SourceAnchor {
+                    air_own_sample: pco2_air_uatm(own, sw.temp_c, sw.salinity),
+                    air_reef_sample: pco2_air_uatm(x, sw.temp_c, sw.salinity),
+                })
+            }
+            None => None,
+        };
         Ok(RecordAnchor {
             xco2_sample_ppm: x,
             pco2_air_sample: pco2_air_uatm(x, rec.temp_c, rec.salinity),
+            source,
         })
     }
 
     /// Projected seawater pCO2 from the record's seawater pCO2 (possibly perturbed by a
-    /// measurement draw) and the air pCO2 of the horizon year.
+    /// measurement draw) and the air pCO2 of the horizon year, by the ratio or additive rule.
+    /// The source-offsets rule projects no pCO2 of the record on its own (the record's state
+    /// comes from [`project_state`]); it is given the ratio value here.
     pub fn project_pco2(&self, pco2_record: f64, pco2_air_year: f64, mode: Disequilibrium) -> f64 {
         match mode {
-            Disequilibrium::Ratio => pco2_air_year * (pco2_record / self.pco2_air_sample),
+            Disequilibrium::Ratio | Disequilibrium::SourceOffsets => {
+                pco2_air_year * (pco2_record / self.pco2_air_sample)
+            }
             Disequilibrium::Additive => pco2_air_year + (pco2_record - self.pco2_air_sample),
         }
     }
@@ -252,6 +318,8 @@ pub struct YearConditions {
     pub pco2_air: f64,
     /// All constants at `temp_c`, S, P (central values).
     pub constants: Constants,
+    /// The source water in that year, warmed by the same change (`None`: no source water).
+    pub source: Option<SourceYear>,
 }
 
 impl YearConditions {
@@ -282,12 +350,22 @@ impl YearConditions {
             .map_err(OutlookError::Pathway)?;
         let temp_c = rec.temp_c + change_c;
         let constants = Constants::new(&rec.conditions_at(temp_c), methods);
+        let source = rec.source.as_ref().map(|sw| {
+            let t = sw.temp_c + change_c;
+            SourceYear {
+                air: pco2_air_uatm(xco2, t, sw.salinity),
+                k_year: Constants::new(&sw.conditions_at(t), methods),
+                k_sample: Constants::new(&sw.conditions_at(sw.temp_c), methods),
+                k_reef_sample: Constants::new(&rec.conditions_at(rec.temp_c), methods),
+            }
+        });
         Ok(YearConditions {
             year,
             xco2_ppm: xco2,
             temp_c,
             pco2_air: pco2_air_uatm(xco2, temp_c, rec.salinity),
             constants,
+            source,
         })
     }
 }
@@ -303,7 +381,7 @@ pub struct ProjectedPoint {
     pub xco2_ppm: f64,
     /// pCO2 of air in equilibrium with the water, µatm.
     pub pco2_air: f64,
-    /// Projected seawater pCO2 before any DIC offset, µatm.
+    /// Projected seawater pCO2 before any DIC offset, µatm (source offsets: of the state).
     pub pco2_sea: f64,
     /// Temperature used, °C.
     pub temp_c: f64,
@@ -337,6 +415,69 @@ pub fn solve_projected(
     }
 }
 
+/// What a record's projection starts from: its TA and seawater pCO2 at sampling and, with a
+/// source water, the source's TA and pCO2; central values or one member's measurement draws.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Start {
+    pub ta: f64,
+    pub pco2: f64,
+    /// Source water (TA, pCO2) at sampling.
+    pub source: Option<(f64, f64)>,
+}
+
+impl Start {
+    /// The record's central values.
+    pub fn central(rec: &ProjectionRecord) -> Start {
+        Start {
+            ta: rec.ta,
+            pco2: rec.pco2,
+            source: rec.source.as_ref().map(|s| (s.ta, s.pco2)),
+        }
+    }
+}
+
+/// The state of one record in the year of `yc` under `mode`: the one per-record projection
+/// (the ensemble's central values, its members, the share of time below and
+/// [`project_record`] all come through here). `pt`: a member's shift of the constants
+/// (`None`: central constants); `offsets`: a local scenario's offsets.
+pub fn project_state(
+    rec: &ProjectionRecord,
+    anchor: &RecordAnchor,
+    start: &Start,
+    yc: &YearConditions,
+    pt: Option<&Perturbation>,
+    mode: Disequilibrium,
+    offsets: Option<&Offsets>,
+) -> Result<CarbonateState, String> {
+    let k = pt.map_or(yc.constants, |p| yc.constants.perturbed(p));
+    match mode {
+        Disequilibrium::Ratio | Disequilibrium::Additive => {
+            let pco2 = anchor.project_pco2(start.pco2, yc.pco2_air, mode);
+            solve_projected(start.ta, pco2, offsets, &k)
+        }
+        Disequilibrium::SourceOffsets => {
+            let (Some(sw), Some(sa), Some(sy), Some((source_ta, source_pco2))) = (
+                rec.source.as_ref(),
+                anchor.source.as_ref(),
+                yc.source.as_ref(),
+                start.source,
+            ) else {
+                return Err(
+                    "the source-offsets rule needs the record's offshore source water, and the site has none"
+                        .to_string(),
+                );
+            };
+            let held = HeldStart {
+                reef_ta: start.ta,
+                reef_pco2: start.pco2,
+                source_ta,
+                source_pco2,
+            };
+            offsets_held_state(&held, sw, sa, sy, &yc.constants, pt, offsets)
+        }
+    }
+}
+
 /// Projects one record to one year without any random draw (the "ensemble off" path, also
 /// used for outside checks).
 #[allow(clippy::too_many_arguments)]
@@ -353,15 +494,17 @@ pub fn project_record(
     rec.validate()?;
     let anchor = RecordAnchor::new(rec, pathway, observed)?;
     let yc = YearConditions::new(rec, pathway, observed, warming, methods, year)?;
-    let pco2_sea = anchor.project_pco2(rec.pco2, yc.pco2_air, mode);
-    let state = solve_projected(rec.ta, pco2_sea, offsets, &yc.constants).map_err(|message| {
-        OutlookError::Solve {
+    let state = project_state(rec, &anchor, &Start::central(rec), &yc, None, mode, offsets)
+        .map_err(|message| OutlookError::Solve {
             record: rec.label.clone(),
             pathway: pathway.name.clone(),
             year,
             message,
-        }
-    })?;
+        })?;
+    let pco2_sea = match mode {
+        Disequilibrium::SourceOffsets => state.pco2,
+        _ => anchor.project_pco2(rec.pco2, yc.pco2_air, mode),
+    };
     Ok(ProjectedPoint {
         pathway: pathway.name.clone(),
         year,
@@ -392,6 +535,7 @@ mod tests {
             pco2,
             measured: None,
             unit: None,
+            source: None,
         }
     }
 

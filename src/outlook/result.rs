@@ -446,6 +446,32 @@ pub struct Outlook {
     /// The thermal-stress outlook, when the site has a temperature record
     /// ([`crate::pipeline::project`] fills it in).
     pub heat: Option<super::thermal::site::SiteHeat>,
+    /// Structural uncertainty: the three projection rules compared, when the site has
+    /// offshore source water (empty otherwise); ordered by pathway, group and year.
+    pub rule_comparison: Vec<RuleComparison>,
+}
+
+/// One group's time-weighted mean Omega_ar in one horizon year under the ratio, additive and
+/// source-offsets rules ([`super::Disequilibrium::ALL`] order), each record projected on its
+/// own with central values (no ensemble).
+#[derive(Clone, Debug, PartialEq)]
+pub struct RuleComparison {
+    pub pathway: PathwayId,
+    pub group: GroupId,
+    pub year: i32,
+    pub omega_ar: [f64; 3],
+}
+
+impl RuleComparison {
+    /// Largest minus smallest of the three (NaN when any is missing).
+    pub fn spread(&self) -> f64 {
+        if self.omega_ar.iter().any(|x| !x.is_finite()) {
+            return f64::NAN;
+        }
+        let hi = self.omega_ar.iter().copied().fold(f64::MIN, f64::max);
+        let lo = self.omega_ar.iter().copied().fold(f64::MAX, f64::min);
+        hi - lo
+    }
 }
 
 impl Outlook {

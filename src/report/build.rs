@@ -497,6 +497,7 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
         calcification,
         local_scenarios,
         thermal: thermal::thermal(outlook),
+        projection_rules: from_outlook::projection_rules(outlook),
         methods,
         record_files: appendix::record_files(loaded),
         samples,

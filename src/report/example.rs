@@ -193,6 +193,7 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
         time_below: Vec::new(),
         calcification: Vec::new(),
         thermal: Some(example_thermal(i, pathways, &years)),
+        projection_rules: Vec::new(),
         local_scenarios: vec![LocalScenario {
             name: "Alkalinity +50 µmol/kg".to_string(),
             description: "Invented example of a local alkalinity addition.".to_string(),

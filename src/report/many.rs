@@ -99,6 +99,7 @@ pub fn summarise(site: &SiteReport, horizons: &[i32]) -> SiteReport {
     // The ranking reads the chance below the key level at the plan's end year only.
     s.probabilities
         .retain(|p| p.season == season && Some(p.year) == end && p.threshold == KEY_OMEGA_LEVEL);
+    s.projection_rules.clear();
     s.methods.chemistry.clear();
     s.methods.notes.clear();
     for p in &mut s.projection {

@@ -256,6 +256,10 @@ pub struct SiteReport {
     pub local_scenarios: Vec<LocalScenario>,
     /// Thermal stress from the site's temperature record; `None`: the site has none.
     pub thermal: Option<ThermalOutlook>,
+    /// Structural uncertainty at a site with offshore source water: the three projection
+    /// rules compared (empty without source water).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub projection_rules: Vec<RuleRow>,
     pub methods: Methods,
     /// The record files with what was done to their values (for the appendix).
     pub record_files: Vec<RecordFile>,
@@ -537,6 +541,21 @@ pub struct ScenarioRow {
     pub omega_ar: Quantiles,
     /// Median Ω_ar without the scenario, for comparison.
     pub reference_median: Option<f64>,
+}
+
+/// One season's mean Ω_ar in one year under the ratio, additive and source-offsets rules
+/// (central values, records projected on their own).
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct RuleRow {
+    /// [`PathwayInfo::id`].
+    pub pathway: String,
+    pub season: String,
+    pub year: i32,
+    pub ratio: f64,
+    pub additive: f64,
+    pub source_offsets: f64,
+    /// Largest minus smallest of the three.
+    pub spread: f64,
 }
 
 /// The methods used for one site.

@@ -70,7 +70,7 @@ date_format = "iso"                # "iso", "day-first" or "month-first"
 [projection]
 pathways = ["SSP1-2.6", "SSP2-4.5", "SSP5-8.5"]
 # horizon_years = [2030, 2050, 2070, 2100]   # default: every 5 years to 2100
-disequilibrium = "ratio"           # "ratio" or "additive"
+disequilibrium = "ratio"           # "ratio", "additive" or "source offsets"
 warming = true
 members = 1000
 seed = 20240601

@@ -74,9 +74,27 @@ pub(super) struct Run<'a> {
     notes: Diagnostics,
 }
 
+/// True when `smp` is a row of offshore source water under `site`'s marks
+/// (`record_paths`: the resolved paths of the record files).
+fn is_source_row(site: &SiteFile, record_paths: &[PathBuf], smp: &Sample) -> bool {
+    let by_station = site
+        .source_water
+        .as_ref()
+        .and_then(|s| s.station.as_deref())
+        .is_some_and(|st| st == &*smp.station);
+    by_station
+        || site
+            .records
+            .iter()
+            .zip(record_paths)
+            .any(|(r, p)| r.source_water && p.as_path() == &*smp.source_file)
+}
+
 /// What a finished run gives the loaded site.
 pub(super) struct Output {
     pub samples: Vec<Sample>,
+    /// Rows of offshore source water, apart from the reef's.
+    pub source_samples: Vec<Sample>,
     pub findings: Diagnostics,
     pub qc: Vec<Finding>,
     pub qc_position: usize,
@@ -101,6 +119,13 @@ impl<'a> Run<'a> {
             ta_fit: None,
             notes: Diagnostics::new(),
         }
+    }
+
+    /// True for a row of offshore source water (a file marked `source_water = true` or the
+    /// station named in `[source_water]`): kept apart from the reef's baseline, TA–salinity
+    /// fit and outlook.
+    fn is_source_row(&self, smp: &Sample) -> bool {
+        is_source_row(self.site, &self.res.record_paths, smp)
     }
 
     fn file(&self, i: usize) -> PathBuf {
@@ -212,7 +237,7 @@ impl<'a> Run<'a> {
             .samples
             .iter()
             .zip(&self.drop)
-            .filter(|(s, d)| !**d && s.kind == RecordKind::Bottle)
+            .filter(|(s, d)| !**d && s.kind == RecordKind::Bottle && !self.is_source_row(s))
             .filter_map(|(s, _)| s.measured.ta().map(|ta| (s.salinity, ta)))
             .collect();
         self.ta_fit = TaSalinityFit::fit(&kept_bottles);
@@ -411,6 +436,8 @@ impl<'a> Run<'a> {
     pub fn finish(mut self, summaries: Vec<RecordSummary>) -> Result<Output, LoadFailure> {
         let mut samples = std::mem::take(&mut self.samples);
         records::retain_kept(&mut samples, &self.drop);
+        let (source_samples, samples): (Vec<Sample>, Vec<Sample>) =
+            samples.into_iter().partition(|smp| self.is_source_row(smp));
         let baseline = baseline::compute(
             &samples,
             &self.res.seasons,
@@ -456,6 +483,7 @@ impl<'a> Run<'a> {
         input_files.extend(self.res.record_paths.iter().cloned());
         Ok(Output {
             samples,
+            source_samples,
             findings: diags,
             qc,
             qc_position,

@@ -57,6 +57,10 @@ pub struct LoadedSite {
     pub methods: MethodSet,
     #[serde(skip)]
     pub samples: Vec<Sample>,
+    /// Rows of offshore source water (`[source_water]`), kept apart from `samples`: they
+    /// feed neither the baseline nor the reef's outlook, only the source-offsets rule.
+    #[serde(skip)]
+    pub source_samples: Vec<Sample>,
     /// Site-level warnings and notes (errors make [`load_site`] fail instead). Not part of
     /// this type's JSON form: `check --format json` lists them once, at the top level.
     #[serde(skip)]
@@ -249,6 +253,7 @@ pub fn load_site_at(path: &Path, now: DateTime<Utc>) -> Result<LoadedSite, LoadF
         utc_offset: res.utc_offset,
         methods: res.methods,
         samples: out.samples,
+        source_samples: out.source_samples,
         findings: out.findings,
         qc: out.qc,
         qc_position: out.qc_position,

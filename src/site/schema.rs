@@ -44,6 +44,60 @@ pub struct SiteFile {
     /// `[thermal]`: the temperature record for the thermal-stress outlook (optional).
     #[serde(default)]
     pub thermal: Option<crate::site::temperature::ThermalSpec>,
+    /// `[source_water]`: the offshore water the reef's metabolism works on (optional): a
+    /// station of the records, how it follows the atmosphere, or an offshore TA/DIC.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source_water: Option<SourceWaterSpec>,
+}
+
+/// How the offshore source water follows the atmosphere under a pathway.
+#[derive(Clone, Copy, Debug, Default, Deserialize, Serialize, PartialEq, Eq)]
+#[serde(rename_all = "lowercase")]
+pub enum SourceFollows {
+    /// Its pCO2 keeps its ratio to the air pCO2 (default).
+    #[default]
+    Ratio,
+    /// Its pCO2 keeps its difference from the air pCO2.
+    Additive,
+}
+
+/// `[source_water]`: offshore source water apart from reef metabolism. Rows of record files
+/// marked `source_water = true`, or of the station named here, are source water: they stay
+/// out of the reef's baseline and outlook, and each reef record is measured against them
+/// (same season and local hour when the source has readings in that hour, else the season
+/// mean). Without source-water rows, `ta_umol_kg` and `dic_umol_kg` (with `source`) give an
+/// offshore state to use instead.
+#[derive(Clone, Debug, Default, Deserialize, Serialize, PartialEq)]
+#[serde(deny_unknown_fields)]
+pub struct SourceWaterSpec {
+    /// Station whose rows are offshore source water.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub station: Option<String>,
+    /// How the source water follows the atmosphere ("ratio" or "additive").
+    #[serde(default)]
+    pub follows_atmosphere: SourceFollows,
+    /// Offshore total alkalinity, µmol/kg (when the site has no source-water rows).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub ta_umol_kg: Option<f64>,
+    /// Offshore DIC, µmol/kg (with `ta_umol_kg`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub dic_umol_kg: Option<f64>,
+    /// Offshore temperature, °C (default: each reef record's own).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub temp_c: Option<f64>,
+    /// Offshore salinity (default: each reef record's own).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub salinity: Option<f64>,
+    /// Where the offshore TA and DIC come from (required with them).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub source: Option<String>,
+}
+
+impl SourceWaterSpec {
+    /// True when the site file states an offshore TA and DIC.
+    pub fn has_stated_values(&self) -> bool {
+        self.ta_umol_kg.is_some() || self.dic_umol_kg.is_some()
+    }
 }
 
 /// `[site]`: what and where the candidate site is.
@@ -210,6 +264,13 @@ pub struct RecordSpec {
     pub columns: ColumnMap,
     #[serde(default)]
     pub units: RecordUnits,
+    /// The file holds offshore source water, not reef water (see [`SourceWaterSpec`]).
+    #[serde(default, skip_serializing_if = "is_false")]
+    pub source_water: bool,
+}
+
+fn is_false(b: &bool) -> bool {
+    !*b
 }
 
 /// `[records.columns]`: the header in the file for each quantity. Quantities left out are
@@ -338,6 +399,10 @@ pub enum Disequilibrium {
     Ratio,
     /// pCO2_sea(y) = pCO2_air(y) + (pCO2_sea − pCO2_air at sampling).
     Additive,
+    /// The reef's TA/DIC offsets from its offshore source water are held while the source
+    /// water follows the atmosphere (needs `[source_water]`).
+    #[serde(rename = "source offsets")]
+    SourceOffsets,
 }
 
 /// A pathway of the user's own: atmospheric CO2 (ppm) at given years, interpolated linearly.

@@ -113,6 +113,7 @@ pub fn validate(file: &Path, site: &SiteFile, map: &SourceMap) -> (Option<Resolv
     check_thresholds(&mut c, site);
     let methods = check_chemistry(&mut c, site);
     check_scenarios(&mut c, site, seasons.as_deref());
+    check_source_water(&mut c, site);
     if let Some(d) = &site.report.date
         && chrono::NaiveDate::parse_from_str(d, "%Y-%m-%d").is_err()
     {
@@ -446,6 +447,103 @@ fn check_chemistry(c: &mut Checker<'_>, site: &SiteFile) -> Option<MethodSet> {
 }
 
 /// `[[scenario]]`.
+/// Accepted offshore TA and DIC stated in `[source_water]`, µmol/kg (the solver's limits are
+/// wider; these keep a unit slip such as mmol/kg or µmol/L × 1000 out).
+pub const SOURCE_TA_DIC_RANGE: (f64, f64) = (500.0, 4000.0);
+
+/// Checks `[source_water]` and the records marked as source water.
+fn check_source_water(c: &mut Checker<'_>, site: &SiteFile) {
+    let marked = site.records.iter().filter(|r| r.source_water).count();
+    if marked > 0 && marked == site.records.len() {
+        c.error(
+            &format!("records[{}].source_water", marked - 1),
+            "every record file is marked as source water, so no reef record is left",
+            "mark only the offshore file(s) with `source_water = true`",
+        );
+    }
+    let spec = site.source_water.as_ref();
+    if let Some(sw) = spec {
+        let (lo, hi) = SOURCE_TA_DIC_RANGE;
+        match (sw.ta_umol_kg, sw.dic_umol_kg) {
+            (Some(ta), Some(dic)) => {
+                c.range(
+                    "source_water.ta_umol_kg",
+                    "offshore TA",
+                    ta,
+                    lo,
+                    hi,
+                    " µmol/kg",
+                );
+                c.range(
+                    "source_water.dic_umol_kg",
+                    "offshore DIC",
+                    dic,
+                    lo,
+                    hi,
+                    " µmol/kg",
+                );
+                if sw.source.as_deref().is_none_or(|s| s.trim().is_empty()) {
+                    c.error(
+                        "source_water",
+                        "an offshore TA/DIC needs its source",
+                        "add source = \"...\" (a survey, cruise or data product) to [source_water]",
+                    );
+                }
+            }
+            (Some(_), None) => c.error(
+                "source_water.ta_umol_kg",
+                "an offshore TA is given without its DIC",
+                "give both ta_umol_kg and dic_umol_kg",
+            ),
+            (None, Some(_)) => c.error(
+                "source_water.dic_umol_kg",
+                "an offshore DIC is given without its TA",
+                "give both ta_umol_kg and dic_umol_kg",
+            ),
+            (None, None) => {}
+        }
+        if let Some(t) = sw.temp_c {
+            c.range(
+                "source_water.temp_c",
+                "offshore temperature",
+                t,
+                -2.0,
+                40.0,
+                " °C",
+            );
+        }
+        if let Some(v) = sw.salinity {
+            c.range(
+                "source_water.salinity",
+                "offshore salinity",
+                v,
+                1.0,
+                45.0,
+                "",
+            );
+        }
+        if let Some(st) = &sw.station
+            && st.trim().is_empty()
+        {
+            c.error(
+                "source_water.station",
+                "the source-water station name is empty",
+                "name the station whose rows are offshore source water",
+            );
+        }
+    }
+    let has_source =
+        marked > 0 || spec.is_some_and(|sw| sw.station.is_some() || sw.has_stated_values());
+    if site.projection.disequilibrium == super::schema::Disequilibrium::SourceOffsets && !has_source
+    {
+        c.error(
+            "projection.disequilibrium",
+            "\"source offsets\" needs offshore source water, and the site has none",
+            "mark the offshore record file with `source_water = true`, name its station in [source_water], or give an offshore ta_umol_kg and dic_umol_kg there",
+        );
+    }
+}
+
 fn check_scenarios(c: &mut Checker<'_>, site: &SiteFile, seasons: Option<&[Season]>) {
     let mut names = BTreeSet::new();
     for (i, sc) in site.scenario.iter().enumerate() {

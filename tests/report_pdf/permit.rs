@@ -67,7 +67,11 @@ fn appendix_opens_with_the_version_and_every_input_and_data_file_digest() {
         "no {version} on the appendix's first page"
     );
     let files = every_input(LAGOON);
-    assert_eq!(files.len(), 4, "site, two record files, logger: {files:?}");
+    assert_eq!(
+        files.len(),
+        5,
+        "site, three record files (one offshore source water), logger: {files:?}"
+    );
     for f in &files {
         let digest = sha256_hex(f);
         assert!(

@@ -6,7 +6,9 @@ use rayon::prelude::*;
 
 use crate::chem::{CarbonateState, Constants, Input};
 
-use super::super::projection::{Disequilibrium, RecordAnchor, YearConditions, solve_projected};
+use super::super::projection::{
+    Disequilibrium, RecordAnchor, Start, YearConditions, project_state,
+};
 use super::super::{OutlookError, ProjectionRecord, SiteInput};
 use super::prepare::Prepared;
 use super::settings::input_err;
@@ -81,8 +83,9 @@ pub(super) fn present_values(
         .collect()
 }
 
-/// Projects every record under pathway `p` at every knot year and variant.
-pub(super) fn project_all(prep: &Prepared<'_>, p: usize) -> Central {
+/// Projects every record under pathway `p` at every knot year and variant, by rule `mode`
+/// (the settings' rule, or another for the comparison of the rules).
+pub(super) fn project_all(prep: &Prepared<'_>, p: usize, mode: Disequilibrium) -> Central {
     let nk = prep.knots.len();
     let nv = prep.variants.len();
     let per_record: Vec<(Vec<Values>, usize, Option<String>)> = prep
@@ -90,7 +93,7 @@ pub(super) fn project_all(prep: &Prepared<'_>, p: usize) -> Central {
         .records
         .par_iter()
         .enumerate()
-        .map(|(ri, rec)| project_one(prep, p, ri, rec))
+        .map(|(ri, rec)| project_one(prep, p, mode, ri, rec))
         .collect();
     let mut at = vec![Vec::with_capacity(prep.site.records.len() * nk); nv];
     let mut failures = 0;
@@ -119,6 +122,7 @@ pub(super) fn project_all(prep: &Prepared<'_>, p: usize) -> Central {
 fn project_one(
     prep: &Prepared<'_>,
     p: usize,
+    mode: Disequilibrium,
     ri: usize,
     rec: &ProjectionRecord,
 ) -> (Vec<Values>, usize, Option<String>) {
@@ -159,14 +163,10 @@ fn project_one(
                 continue;
             }
         };
-        let pco2_sea = anchor.project_pco2(rec.pco2, yc.pco2_air, s.mode);
+        let start = Start::central(rec);
         for v in &prep.variants {
-            match solve_projected(
-                rec.ta,
-                pco2_sea,
-                v.offsets_for(rec.season, year),
-                &yc.constants,
-            ) {
+            let offsets = v.offsets_for(rec.season, year);
+            match project_state(rec, anchor, &start, &yc, None, mode, offsets) {
                 Ok(st) => out.push(values_of(&st, yc.temp_c)),
                 Err(msg) => {
                     fail(msg, year);

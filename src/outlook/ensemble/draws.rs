@@ -4,6 +4,7 @@ use crate::chem::{self, Constants, Input, MethodSet, ORR2018, Perturbation};
 
 use super::super::ProjectionRecord;
 use super::super::projection::shifted;
+use super::super::source_water::SourceWater;
 use super::settings::EnsembleSettings;
 
 /// Shifts of the constants for eight standard normal deviates, in the order pK0, pK1, pK2,
@@ -87,6 +88,30 @@ pub(super) fn member_start(
                 .map_err(|e| format!("re-solving the record with this member's draws: {e}"))
         }
     }
+}
+
+/// The member's source-water TA and pCO2 at sampling: the source's mean TA and DIC with
+/// the member's measurement errors of a mean of `rows` values (the site's TA and DIC
+/// uncertainties divided by √rows; deviates `z`), re-solved with the member's constants at
+/// the source's conditions (`k_sample`: central constants there). The same constants'
+/// shift as the reef record's, so that the two stay paired.
+pub(super) fn member_source_start(
+    e: &EnsembleSettings,
+    sw: &SourceWater,
+    z: (f64, f64),
+    k_sample: &Constants,
+    perturbation: Option<&Perturbation>,
+) -> Result<(f64, f64), String> {
+    if e.members == 0 || (z == (0.0, 0.0) && perturbation.is_none()) {
+        return Ok((sw.ta, sw.pco2));
+    }
+    let scale = 1.0 / (sw.rows.max(1) as f64).sqrt();
+    let ta = sw.ta + e.measurement.ta_umol_kg * z.0 * scale;
+    let dic = sw.dic + e.measurement.dic_umol_kg * z.1 * scale;
+    let k = perturbation.map_or(*k_sample, |p| k_sample.perturbed(p));
+    chem::solve_pair(Input::Ta(ta), Input::Dic(dic), &k)
+        .map(|st| (st.ta, st.pco2))
+        .map_err(|e| format!("re-solving the source water with this member's draws: {e}"))
 }
 
 #[cfg(test)]

@@ -24,6 +24,7 @@ fn record(ta: f64, pco2: f64, unit: Option<SamplingUnit>) -> ProjectionRecord {
         pco2,
         measured: None,
         unit,
+        source: None,
     }
 }
 

@@ -42,6 +42,7 @@ pub mod central;
 pub mod draws;
 pub mod prepare;
 pub mod quantiles;
+pub mod rules;
 pub mod run;
 pub mod settings;
 pub mod units;

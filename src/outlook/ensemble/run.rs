@@ -8,14 +8,14 @@ use rayon::prelude::*;
 
 use crate::chem::{Constants, Perturbation};
 
-use super::super::projection::{YearConditions, solve_projected};
-use super::super::result::{QuantilePoint, Quantiles, Quantity};
+use super::super::projection::{Start, YearConditions, project_state, solve_projected};
+use super::super::result::{QuantilePoint, Quantiles, Quantity, RuleComparison};
 use super::super::rng::Xoshiro256;
 use super::super::warming::warming_factor;
 use super::super::{OutlookError, ProjectionSettings, SiteInput};
 use super::assemble::assemble;
 use super::central::{Central, NQ, OMEGA_AR, TEMP, Values, project_all, values_of};
-use super::draws::{MemberDraw, constants_perturbation, member_start};
+use super::draws::{MemberDraw, constants_perturbation, member_source_start, member_start};
 use super::prepare::{Group, Prepared};
 use super::quantiles::five_quantiles;
 use super::settings::{Progress, input_err};
@@ -103,6 +103,8 @@ struct GroupTables {
     /// Its central warming per knot, °C.
     rep_warming: Vec<f64>,
     rep_k_sample: Constants,
+    /// Central constants of its source water at sampling (`None`: no source water).
+    rep_k_source: Option<Constants>,
 }
 
 /// Mean of `vals` over units with multiplicities `counts`, quantity by quantity over the
@@ -177,8 +179,7 @@ impl Prepared<'_> {
         };
         let solve_at = |yc: &YearConditions, v: usize, year: i32| {
             let off = self.variants.get(v)?.offsets_for(rep.season, year);
-            let pco2 = anchor.project_pco2(rep.pco2, yc.pco2_air, s.mode);
-            solve_projected(rep.ta, pco2, off, &yc.constants)
+            project_state(rep, anchor, &Start::central(rep), yc, None, s.mode, off)
                 .ok()
                 .map(|st| values_of(&st, yc.temp_c))
         };
@@ -215,6 +216,10 @@ impl Prepared<'_> {
             rep_per_degree,
             rep_warming: self.knots.iter().map(|&y| change(y)).collect(),
             rep_k_sample: Constants::new(&rep.conditions_at(rep.temp_c), &site.methods),
+            rep_k_source: rep
+                .source
+                .as_ref()
+                .map(|sw| Constants::new(&sw.conditions_at(sw.temp_c), &site.methods)),
         })
     }
 
@@ -228,13 +233,13 @@ impl Prepared<'_> {
         g: &Group,
         t: &GroupTables,
         shared: &Shared,
-        z: (f64, f64),
+        z: &MeasurementZ,
     ) -> Result<(Vec<Vec<Values>>, Values), String> {
         let (site, s) = (self.site, self.s);
         let nv = self.variants.len();
         let nk = self.knots.len();
         let zero = [0.0; NQ];
-        let no_draws = shared.perturbation.is_none() && z == (0.0, 0.0);
+        let no_draws = shared.perturbation.is_none() && z.is_zero();
         if s.ensemble.members == 0 || (no_draws && shared.warming == 1.0) {
             return Ok((vec![vec![zero; nk]; nv], zero));
         }
@@ -247,8 +252,8 @@ impl Prepared<'_> {
         let scale = 1.0 / (g.units.len().max(1) as f64).sqrt();
         let draw = MemberDraw {
             perturbation: shared.perturbation,
-            z_a: z.0 * scale,
-            z_b: z.1 * scale,
+            z_a: z.reef.0 * scale,
+            z_b: z.reef.1 * scale,
         };
         let (ta, pco2) = member_start(
             &s.ensemble,
@@ -257,6 +262,17 @@ impl Prepared<'_> {
             &draw,
             Some(&t.rep_k_sample),
         )?;
+        let source = match (&rep.source, &t.rep_k_source) {
+            (Some(sw), Some(k)) => Some(member_source_start(
+                &s.ensemble,
+                sw,
+                z.source,
+                k,
+                shared.perturbation.as_ref(),
+            )?),
+            _ => None,
+        };
+        let start = Start { ta, pco2, source };
         let k_sample = match &shared.perturbation {
             Some(pt) => t.rep_k_sample.perturbed(pt),
             None => t.rep_k_sample,
@@ -276,18 +292,14 @@ impl Prepared<'_> {
             let Some(yc) = yc else {
                 return Err(format!("conditions in {year}"));
             };
-            let km = match &shared.perturbation {
-                Some(pt) => yc.constants.perturbed(pt),
-                None => yc.constants,
-            };
-            let pco2_sea = anchor.project_pco2(pco2, yc.pco2_air, s.mode);
             let dt = (shared.warming - 1.0) * t.rep_warming.get(k).copied().unwrap_or(0.0);
             for (v, row) in out.iter_mut().enumerate() {
                 let off = self
                     .variants
                     .get(v)
                     .and_then(|x| x.offsets_for(rep.season, year));
-                let st = solve_projected(ta, pco2_sea, off, &km)
+                let pt = shared.perturbation.as_ref();
+                let st = project_state(rep, anchor, &start, yc, pt, s.mode, off)
                     .map_err(|e| format!("{year} with this member's draws: {e}"))?;
                 let vals = values_of(&st, yc.temp_c);
                 let c = t.rep_central.get(v).and_then(|c| c.get(k)).unwrap_or(&zero);
@@ -300,6 +312,20 @@ impl Prepared<'_> {
             }
         }
         Ok((out, present))
+    }
+}
+
+/// A member's standard normal deviates of measurement errors: the reef record's measured
+/// pair and its source water's TA and DIC (zero without source water).
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+struct MeasurementZ {
+    reef: (f64, f64),
+    source: (f64, f64),
+}
+
+impl MeasurementZ {
+    fn is_zero(&self) -> bool {
+        *self == MeasurementZ::default()
     }
 }
 
@@ -347,13 +373,21 @@ fn run_task(
             g.units.draw_counts(&mut rng, &mut counts);
         }
         let z = if s.ensemble.members == 0 {
-            (0.0, 0.0)
+            MeasurementZ::default()
         } else {
-            (rng.normal(), rng.normal())
+            // The source water's deviates are drawn after the reef's, and only when it has
+            // source water, so that a site without one keeps its streams.
+            let reef = (rng.normal(), rng.normal());
+            let source = if t.rep_k_source.is_some() {
+                (rng.normal(), rng.normal())
+            } else {
+                (0.0, 0.0)
+            };
+            MeasurementZ { reef, source }
         };
         let shared = shared_draw(prep, m);
         let nan = [f64::NAN; NQ];
-        let (corr, corr_now) = match prep.corrections(p, g, &t, &shared, z) {
+        let (corr, corr_now) = match prep.corrections(p, g, &t, &shared, &z) {
             Ok(c) => c,
             Err(msg) => {
                 failures += nk;
@@ -626,9 +660,10 @@ pub fn run(
     let total: u64 =
         (s.pathways.len() * prep.groups.len()) as u64 * s.ensemble.members.max(1) as u64 * nk;
     progress.start(total);
-    let work = || -> (Vec<Central>, Vec<TaskOut>) {
+    let has_source = site.records.iter().any(|r| r.source.is_some());
+    let work = || -> (Vec<Central>, Vec<TaskOut>, Vec<RuleComparison>) {
         let centrals: Vec<Central> = (0..s.pathways.len())
-            .map(|p| project_all(&prep, p))
+            .map(|p| project_all(&prep, p, s.mode))
             .collect();
         // Task order (pathway-major, then group) is the order of `outs`.
         let tasks: Vec<(usize, &Group)> = (0..s.pathways.len())
@@ -645,9 +680,14 @@ pub fn run(
                 },
             })
             .collect();
-        (centrals, outs)
+        let rules = if has_source {
+            super::rules::compare_rules(&prep, &centrals)
+        } else {
+            Vec::new()
+        };
+        (centrals, outs, rules)
     };
-    let (centrals, outs) = match s.ensemble.threads {
+    let (centrals, outs, rules) = match s.ensemble.threads {
         Some(n) => rayon::ThreadPoolBuilder::new()
             .num_threads(n)
             .build()
@@ -655,5 +695,7 @@ pub fn run(
             .install(work),
         None => work(),
     };
-    Ok(assemble(&prep, &centrals, &outs))
+    let mut outlook = assemble(&prep, &centrals, &outs);
+    outlook.rule_comparison = rules;
+    Ok(outlook)
 }

@@ -48,6 +48,7 @@ fn rec(season: usize, i: usize, t: f64, ta: f64, pco2: f64) -> ProjectionRecord 
         pco2,
         measured: None,
         unit: None,
+        source: None,
     }
 }
 

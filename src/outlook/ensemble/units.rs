@@ -132,6 +132,7 @@ mod tests {
                 continuous,
                 minute: None,
             }),
+            source: None,
         }
     }
 

@@ -106,6 +106,29 @@ fn quantiles(q: &crate::outlook::Quantiles) -> Quantiles {
     }
 }
 
+/// The three projection rules compared, per pathway and season (not the all-records
+/// aggregate), in 2050 and the last horizon year.
+pub(super) fn projection_rules(outlook: &Outlook) -> Vec<crate::report::model::RuleRow> {
+    let last = outlook.settings.horizon_years.last().copied();
+    outlook
+        .rule_comparison
+        .iter()
+        .filter(|r| matches!(r.group, GroupId::Season(_)))
+        .filter(|r| r.year == 2050 || Some(r.year) == last)
+        .filter_map(|r| {
+            Some(crate::report::model::RuleRow {
+                pathway: outlook.pathway(r.pathway)?.name.clone(),
+                season: outlook.group_label(r.group).to_string(),
+                year: r.year,
+                ratio: r.omega_ar[0],
+                additive: r.omega_ar[1],
+                source_offsets: r.omega_ar[2],
+                spread: r.spread(),
+            })
+        })
+        .collect()
+}
+
 /// Omega_ar (and pH) quantiles per pathway and season, base case.
 pub(super) fn projection(outlook: &Outlook, seasons: &[String]) -> Vec<PathwayProjection> {
     outlook
@@ -527,8 +550,26 @@ pub(super) fn notes(outlook: &Outlook, absolute_notes: &[String]) -> Vec<String>
             absolute_notes.join("; ")
         ));
     }
+    if !outlook.rule_comparison.is_empty() {
+        notes.push(source_water_method());
+    }
     notes.extend(outlook.notes.iter().map(|n| note_text(outlook, n)));
     notes
+}
+
+/// The methods note of a site with offshore source water: the offset rule and its sources.
+fn source_water_method() -> String {
+    format!(
+        "Source water apart from reef metabolism: {}. Under the source-offsets rule the source \
+         water follows the atmosphere and the offsets are held; the reef water is solved again \
+         from source TA + dTA and source DIC + dDIC, so that diel extremes of pCO₂ widen as the \
+         buffer capacity falls (Shaw, McNeil, Tilbrook, Matear & Bates 2013, Global Change \
+         Biology 19:1632–1641; buffer factors of Egleston, Sabine & Morel 2010, Global \
+         Biogeochemical Cycles 24, GB1002). The table \"Projection rules compared\" shows how \
+         far the ratio, additive and source-offsets rules disagree: structural uncertainty, \
+         not part of the ensemble ranges.",
+        crate::outlook::source_water::OFFSET_RULE
+    )
 }
 
 /// One of the outlook's notes in the report's words: relationships by their names, symbols
