@@ -30,6 +30,8 @@ use calcisite::report::{CalcUnit, fmt};
 use serde_json::Value;
 use sha2::{Digest, Sha256};
 
+#[path = "report_pdf/exposure.rs"]
+mod exposure;
 #[path = "report_pdf/heat.rs"]
 mod heat;
 #[path = "report_pdf/permit.rs"]

@@ -446,6 +446,9 @@ pub struct Outlook {
     /// The thermal-stress outlook, when the site has a temperature record
     /// ([`crate::pipeline::project`] fills it in).
     pub heat: Option<super::thermal::site::SiteHeat>,
+    /// Variability: the exposure metrics of the site's sensor series, as sampled and with
+    /// every reading projected on its own.
+    pub exposure: super::exposure::ExposureOutlook,
 }
 
 impl Outlook {

@@ -14,6 +14,7 @@ use crate::site::baseline::Stats;
 use crate::site::schema::MONTH_NAMES;
 
 mod appendix;
+mod exposure;
 mod from_outlook;
 mod thermal;
 
@@ -497,6 +498,7 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
         calcification,
         local_scenarios,
         thermal: thermal::thermal(outlook),
+        exposure: exposure::exposure(outlook),
         methods,
         record_files: appendix::record_files(loaded),
         samples,

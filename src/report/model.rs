@@ -15,7 +15,9 @@
 
 use serde::{Deserialize, Serialize};
 
+mod exposure;
 mod thermal;
+pub use exposure::*;
 pub use thermal::*;
 
 /// Everything one report (one site or a comparison of several) is made from.
@@ -254,6 +256,9 @@ pub struct SiteReport {
     pub local_scenarios: Vec<LocalScenario>,
     /// Thermal stress from the site's temperature record; `None`: the site has none.
     pub thermal: Option<ThermalOutlook>,
+    /// Exposure of the site's sensor series (hours per day below each level, diel cycle).
+    #[serde(default)]
+    pub exposure: SiteExposure,
     pub methods: Methods,
     /// The record files with what was done to their values (for the appendix).
     pub record_files: Vec<RecordFile>,

@@ -110,6 +110,7 @@ pub(super) fn assemble(prep: &Prepared<'_>, centrals: &[Central], outs: &[TaskOu
         nec: s.nec.clone(),
         notes,
         heat: None,
+        exposure: super::exposure::site_exposure(prep, centrals),
     }
 }
 

@@ -9,6 +9,7 @@
 
 mod appendix;
 mod comparison;
+mod exposure;
 mod limits;
 mod site;
 mod thermal;
