@@ -3,6 +3,11 @@
 //! aggregate) for one invented site with four records per month-season. Target: under 1 s
 //! wall on a 2-core machine.
 //!
+//! Issue 12 speed target: the lagoon demo (a year of hourly sensor data and monthly bottles,
+//! 8,748 records) projected with its exposure metrics, 3 pathways × 1,000 members: under
+//! 1 s. Whole-run time and peak memory: `/usr/bin/time -v calcisite project
+//! sites/tala-vesi-lagoon.toml`.
+//!
 //! Run: `cargo bench --no-default-features --bench projection`
 
 use std::hint::black_box;
@@ -43,6 +48,7 @@ fn invented_site() -> SiteInput {
         name: "invented benchmark reef".into(),
         seasons,
         records,
+        stations: Vec::new(),
         methods: MethodSet::default(),
         observed: Observed::noaa(),
     }
@@ -72,6 +78,13 @@ fn bench(c: &mut Criterion) {
             b.iter(|| black_box(run(&site, &s, &NoProgress).unwrap()))
         });
     }
+    // The lagoon demo as the site file gives it (3 pathways, 1,000 members), exposure included.
+    let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("sites/tala-vesi-lagoon.toml");
+    let loaded = calcisite::site::load_site(&path).expect("lagoon demo loads");
+    let (lagoon, s) = calcisite::outlook::from_loaded_site(&loaded).expect("lagoon settings");
+    g.bench_function("lagoon_3x8x1000_with_exposure", |b| {
+        b.iter(|| black_box(run(&lagoon, &s, &NoProgress).unwrap()))
+    });
     g.finish();
 }
 

@@ -121,7 +121,7 @@ fn project_outputs_match_the_goldens() {
         let site = site_file(s);
         let out = run(&["project", &site, "--format", "csv"]);
         diffs.extend(compare(&format!("project-{s}.csv"), &out));
-        for table in ["crossings", "thresholds"] {
+        for table in ["crossings", "thresholds", "exposure", "diel"] {
             let out = run(&["project", &site, "--format", "csv", "--table", table]);
             diffs.extend(compare(&format!("project-{s}-{table}.csv"), &out));
         }

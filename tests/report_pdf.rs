@@ -32,6 +32,8 @@ use sha2::{Digest, Sha256};
 
 #[path = "report_pdf/compare.rs"]
 mod compare;
+#[path = "report_pdf/exposure.rs"]
+mod exposure;
 #[path = "report_pdf/heat.rs"]
 mod heat;
 #[path = "report_pdf/permit.rs"]

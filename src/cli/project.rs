@@ -42,7 +42,8 @@ pub struct ProjectArgs {
     #[arg(long, default_value = "csv")]
     pub format: OutputFormat,
     /// CSV table: quantiles (default), crossings (first years below the habitat thresholds)
-    /// or thresholds (probability below each threshold per year).
+    /// or thresholds (probability below each threshold per year), heat, exposure (hours per
+    /// day below each threshold in sensor series) or diel (their mean diel cycle).
     #[arg(long, default_value = "quantiles")]
     pub table: OutputTable,
     /// Output file (written atomically); `-` or absent for standard output.

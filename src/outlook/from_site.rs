@@ -53,6 +53,7 @@ pub fn site_input(loaded: &LoadedSite) -> SiteInput {
         name: loaded.site.site.name.clone(),
         seasons: loaded.seasons.iter().map(|s| s.name.clone()).collect(),
         records,
+        stations: stations.iter().map(|s| s.to_string()).collect(),
         methods: loaded.methods,
         observed: Observed::noaa(),
     }

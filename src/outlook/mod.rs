@@ -115,6 +115,8 @@ pub struct SiteInput {
     pub seasons: Vec<String>,
     /// The records, each solved to TA and seawater pCO2.
     pub records: Vec<ProjectionRecord>,
+    /// Station names; [`SamplingUnit::station`] indexes this list.
+    pub stations: Vec<String>,
     /// Chemistry method set.
     pub methods: MethodSet,
     /// The observed atmospheric record (default NOAA).

@@ -74,6 +74,10 @@ pub enum OutputTable {
     Thresholds,
     /// The thermal-stress outlook: observed and projected annual maximum DHW.
     Heat,
+    /// Exposure of sensor series: hours per day and share of time below each threshold.
+    Exposure,
+    /// Exposure of sensor series: the mean diel cycle by local hour.
+    Diel,
 }
 
 impl FromStr for OutputTable {
@@ -84,8 +88,11 @@ impl FromStr for OutputTable {
             "crossings" => Ok(OutputTable::Crossings),
             "thresholds" => Ok(OutputTable::Thresholds),
             "heat" => Ok(OutputTable::Heat),
+            "exposure" => Ok(OutputTable::Exposure),
+            "diel" => Ok(OutputTable::Diel),
             o => Err(format!(
-                "unknown table \"{o}\" (expected quantiles, crossings, thresholds or heat)"
+                "unknown table \"{o}\" (expected quantiles, crossings, thresholds, heat, \
+                 exposure or diel)"
             )),
         }
     }
@@ -274,6 +281,12 @@ impl Outlook {
             (OutputFormat::Csv, OutputTable::Heat) => {
                 super::thermal::output::write_heat_csv(self.heat.as_ref(), w)
             }
+            (OutputFormat::Csv, OutputTable::Exposure) => {
+                super::exposure::output::write_exposure_csv(self, w)
+            }
+            (OutputFormat::Csv, OutputTable::Diel) => {
+                super::exposure::output::write_diel_csv(self, w)
+            }
         }
     }
 
@@ -434,6 +447,8 @@ struct JsonDoc<'a> {
     /// projected on their own by each rule, central values.
     #[serde(skip_serializing_if = "Vec::is_empty")]
     projection_rules: Vec<JsonRules<'a>>,
+    /// Variability: the exposure metrics of sensor series.
+    exposure: super::exposure::output::JsonExposure<'a>,
 }
 
 #[derive(Serialize)]
@@ -749,6 +764,7 @@ impl<'a> From<&'a Outlook> for JsonDoc<'a> {
                     spread: rounded(r.spread(), 4),
                 })
                 .collect(),
+            exposure: o.into(),
         }
     }
 }

@@ -449,6 +449,9 @@ pub struct Outlook {
     /// Structural uncertainty: the three projection rules compared, when the site has
     /// offshore source water (empty otherwise); ordered by pathway, group and year.
     pub rule_comparison: Vec<RuleComparison>,
+    /// Variability: the exposure metrics of the site's sensor series, as sampled and with
+    /// every reading projected on its own.
+    pub exposure: super::exposure::ExposureOutlook,
 }
 
 /// One group's time-weighted mean Omega_ar in one horizon year under the ratio, additive and

@@ -14,6 +14,7 @@ use crate::site::baseline::Stats;
 use crate::site::schema::{MONTH_NAMES, RecordKind};
 
 mod appendix;
+mod exposure;
 mod from_outlook;
 mod thermal;
 
@@ -498,6 +499,7 @@ fn site_report(run: &SiteRun<'_>, horizons: &[i32], appendix: bool) -> Result<Si
         local_scenarios,
         thermal: thermal::thermal(outlook),
         projection_rules: from_outlook::projection_rules(outlook),
+        exposure: exposure::exposure(outlook),
         methods,
         record_files: appendix::record_files(loaded),
         samples,

@@ -194,6 +194,7 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
         calcification: Vec::new(),
         thermal: Some(example_thermal(i, pathways, &years)),
         projection_rules: Vec::new(),
+        exposure: example_exposure(i, pathways, omega0),
         local_scenarios: vec![LocalScenario {
             name: "Alkalinity +50 µmol/kg".to_string(),
             description: "Invented example of a local alkalinity addition.".to_string(),
@@ -237,6 +238,61 @@ fn example_site(i: usize, name: &str, omega0: f64, pathways: &[PathwayInfo]) -> 
 
 /// An invented thermal outlook: annual maximum DHW rising with the pathway and the year
 /// (steeper at the later sites), three observed years with one hot year.
+/// An invented sensor series at the first site (station N1), a diel swing of ±0.4 around a
+/// mean that falls with CO2; the other sites have bottle samples only. Hours below a level
+/// follow from the sinusoid: below `l` while sin < (l − mean)/0.4.
+fn example_exposure(i: usize, pathways: &[PathwayInfo], omega0: f64) -> SiteExposure {
+    if i > 0 {
+        return SiteExposure {
+            unavailable: Some(ExposureUnavailable::NeedsSubDaily),
+            ..SiteExposure::default()
+        };
+    }
+    let states = std::iter::once((None, None)).chain(
+        pathways
+            .iter()
+            .flat_map(|p| [2030, 2050, 2100].map(|y| (Some(p.id.clone()), Some(y)))),
+    );
+    let mut series = Vec::new();
+    for (pathway, year) in states {
+        let k = pathways
+            .iter()
+            .position(|p| Some(&p.id) == pathway.as_ref())
+            .map_or(0.0, |k| k as f64 + 1.0);
+        let mean = omega0 - 0.25 * k * f64::from(year.unwrap_or(2024) - 2024) / 76.0;
+        for (season, _) in SEASONS {
+            let hours = |l: f64| {
+                let x = ((l - mean) / 0.4).clamp(-1.0, 1.0);
+                24.0 * (0.5 + x.asin() / std::f64::consts::PI)
+            };
+            series.push(ExposureSeries {
+                pathway: pathway.clone(),
+                year,
+                season: season.to_string(),
+                station: "N1".to_string(),
+                days: 60,
+                diel_omega_ar: (0..24)
+                    .map(|h| {
+                        mean + 0.4 * (std::f64::consts::TAU * (f64::from(h) - 9.0) / 24.0).sin()
+                    })
+                    .collect(),
+                daily_min_omega_ar: mean - 0.4,
+                hours_below: [4.0, 3.5, 3.0]
+                    .map(|l| HoursBelow {
+                        threshold: l,
+                        hours_per_day: hours(l),
+                    })
+                    .to_vec(),
+            });
+        }
+    }
+    SiteExposure {
+        unavailable: None,
+        stations: vec!["N1".to_string()],
+        series,
+    }
+}
+
 fn example_thermal(i: usize, pathways: &[PathwayInfo], years: &[i32]) -> ThermalOutlook {
     let pathways = pathways
         .iter()

@@ -16,8 +16,10 @@
 use serde::{Deserialize, Serialize};
 
 mod basis;
+mod exposure;
 mod thermal;
 pub use basis::*;
+pub use exposure::*;
 pub use thermal::*;
 
 /// Everything one report (one site or a comparison of several) is made from.
@@ -260,6 +262,9 @@ pub struct SiteReport {
     /// rules compared (empty without source water).
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub projection_rules: Vec<RuleRow>,
+    /// Exposure of the site's sensor series (hours per day below each level, diel cycle).
+    #[serde(default)]
+    pub exposure: SiteExposure,
     pub methods: Methods,
     /// The record files with what was done to their values (for the appendix).
     pub record_files: Vec<RecordFile>,

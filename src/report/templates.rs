@@ -17,6 +17,7 @@ pub const BUILTIN: &[(&str, &str)] = &[
         include_str!("../../templates/site-section.typ"),
     ),
     ("appendix.typ", include_str!("../../templates/appendix.typ")),
+    ("exposure.typ", include_str!("../../templates/exposure.typ")),
     ("README.md", include_str!("../../templates/README.md")),
 ];
 

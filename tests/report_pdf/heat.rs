@@ -13,7 +13,7 @@ fn forereef() -> &'static Report {
 
 /// `calcisite project SITE --table TABLE --format csv`: the header and the rows, split at
 /// commas (none of these tables quotes a field).
-fn project_table(site: &str, table: &str) -> (Vec<String>, Vec<Vec<String>>) {
+pub(super) fn project_table(site: &str, table: &str) -> (Vec<String>, Vec<Vec<String>>) {
     let o = calcisite()
         .args(["project", site, "--table", table, "--format", "csv", "-q"])
         .output()
@@ -26,7 +26,7 @@ fn project_table(site: &str, table: &str) -> (Vec<String>, Vec<Vec<String>>) {
     (header, lines.map(split).collect())
 }
 
-fn column(header: &[String], name: &str) -> usize {
+pub(super) fn column(header: &[String], name: &str) -> usize {
     header
         .iter()
         .position(|h| h == name)

@@ -111,6 +111,7 @@ pub(super) fn assemble(prep: &Prepared<'_>, centrals: &[Central], outs: &[TaskOu
         notes,
         heat: None,
         rule_comparison: Vec::new(),
+        exposure: super::exposure::site_exposure(prep, centrals),
     }
 }
 

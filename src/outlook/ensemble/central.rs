@@ -36,6 +36,10 @@ pub(super) fn values_of(st: &CarbonateState, temp_c: f64) -> Values {
 
 /// Position of Omega_ar in [`Values`].
 pub(super) const OMEGA_AR: usize = 0;
+/// Position of pH_T in [`Values`].
+pub(super) const PH_T: usize = 2;
+/// Position of pCO2 in [`Values`].
+pub(super) const PCO2: usize = 3;
 /// Position of the temperature in [`Values`].
 pub(super) const TEMP: usize = 7;
 

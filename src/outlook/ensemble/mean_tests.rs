@@ -33,6 +33,7 @@ fn site_of(records: Vec<ProjectionRecord>) -> SiteInput {
         name: "Invented season".into(),
         seasons: vec!["only".into()],
         records,
+        stations: Vec::new(),
         methods: MethodSet::default(),
         observed: Observed::noaa(),
     }

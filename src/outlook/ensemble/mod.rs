@@ -35,11 +35,13 @@
 //! constants' draws and a record re-solved with a member's draws), [`prepare`] (groups,
 //! scenarios, anchors, computed years and the notes found before running), [`run`] (the
 //! members and their summary per task), [`assemble`] (the typed [`super::Outlook`]: series,
-//! crossing years, chances and shares below), [`quantiles`] (order statistics).
+//! crossing years, chances and shares below), [`quantiles`] (order statistics), `exposure`
+//! (the exposure metrics of sensor series, from the records each projected on its own).
 
 pub mod assemble;
 pub mod central;
 pub mod draws;
+mod exposure;
 pub mod prepare;
 pub mod quantiles;
 pub mod rules;
@@ -47,6 +49,8 @@ pub mod run;
 pub mod settings;
 pub mod units;
 
+#[cfg(test)]
+mod exposure_tests;
 #[cfg(test)]
 mod mean_tests;
 #[cfg(test)]

@@ -65,6 +65,7 @@ fn site() -> SiteInput {
         name: "Invented test reef".into(),
         seasons: vec!["dry".into(), "wet".into()],
         records,
+        stations: Vec::new(),
         methods: MethodSet::default(),
         observed: Observed::noaa(),
     }

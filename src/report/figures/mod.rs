@@ -13,6 +13,7 @@
 
 mod calcification;
 mod comparison;
+mod exposure;
 mod fan;
 mod overview;
 mod scales;
@@ -22,6 +23,7 @@ mod toolkit;
 
 pub use calcification::{calcification_chart, calcification_legend};
 pub use comparison::{SITES_PER_COMPARISON_CHART, comparison_charts, comparison_key_chart};
+pub use exposure::{DielPick, diel_chart, diel_pick};
 pub use fan::fan_chart;
 pub use overview::outlook_overview;
 pub use seasonal::seasonal_cycle;
@@ -134,6 +136,8 @@ pub struct SiteFigures {
     pub calcification_legend: Option<Figure>,
     /// Annual maximum DHW per pathway (sites with a temperature record).
     pub heat: Option<Figure>,
+    /// Mean diel cycle of Ω_ar of a sensor series (sites with one).
+    pub diel: Option<Figure>,
 }
 
 /// All figures of a report.
@@ -159,6 +163,7 @@ impl ReportFigures {
             out.extend(s.calcification.iter());
             out.extend(s.calcification_legend.iter());
             out.extend(s.heat.iter());
+            out.extend(s.diel.iter());
         }
         out.extend(self.comparison.iter());
         out.extend(self.comparison_key.iter());
@@ -199,6 +204,7 @@ pub fn build_all(model: &ReportModel) -> FigResult<ReportFigures> {
             sf.calcification_legend = calcification_legend(model, site, &prefix)?;
         }
         sf.heat = heat_chart(model, site, &prefix)?;
+        sf.diel = diel_chart(model, site, &prefix)?;
         figs.sites.push(sf);
     }
     if model.sites.len() > 1 {

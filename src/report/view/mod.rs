@@ -10,6 +10,7 @@
 mod appendix;
 mod basis;
 mod comparison;
+mod exposure;
 mod limits;
 mod site;
 mod thermal;

@@ -74,6 +74,8 @@ pub(super) fn site_view(
         "calcification": calcification,
         "scenarios": scenario_views(model, site),
         "thermal": thermal_view(model, site, figs.heat.as_ref()),
+        "exposure": super::exposure::exposure_view(model, site, figs.diel.as_ref()),
+        "exposure_page1": super::exposure::page1_view(model, site),
         "key_years": key_years(model, site),
         "limits": super::limits::limits_view(model, site),
         "methods": {

@@ -9,6 +9,12 @@
 //! count towards nothing. An interval belongs to the local day in which it starts. Only days
 //! with readings in at least [`MIN_HOURS_PER_DAY`] distinct clock hours enter the daily
 //! figures (the same completeness rule as the thermal outlook's daily means).
+//!
+//! Files: this one holds the metrics of one series ([`Clock`]: the timing worked out once,
+//! then evaluated for the readings as sampled and for each projection of them); [`result`]
+//! the typed exposure of a site (per state, season and station) that
+//! `ensemble::exposure` fills from the records each projected on its own; [`output`] its
+//! CSV and JSON views.
 
 use std::collections::BTreeMap;
 
@@ -63,30 +69,25 @@ impl std::fmt::Display for ExposureError {
 
 impl std::error::Error for ExposureError {}
 
-/// Median spacing of consecutive readings, hours.
-fn median_step_hours(r: &[Reading]) -> Option<f64> {
-    let mut steps: Vec<f64> = r
+pub mod output;
+pub mod result;
+
+pub use result::{
+    DielCycle, ExposureGap, ExposureOutlook, ExposureRow, ExposureState, LevelExposure,
+};
+
+/// Median spacing of consecutive times, hours.
+fn median_step_hours(t: &[NaiveDateTime]) -> Option<f64> {
+    let mut steps: Vec<f64> = t
         .windows(2)
         .filter_map(|w| match w {
-            [a, b] => Some((b.local - a.local).num_seconds() as f64 / 3600.0),
+            [a, b] => Some((*b - *a).num_seconds() as f64 / 3600.0),
             _ => None,
         })
         .filter(|s| *s > 0.0)
         .collect();
     steps.sort_by(f64::total_cmp);
     steps.get(steps.len() / 2).copied()
-}
-
-/// Days with readings in at least [`MIN_HOURS_PER_DAY`] distinct clock hours.
-fn complete_days(r: &[Reading]) -> BTreeMap<NaiveDate, bool> {
-    let mut hours: BTreeMap<NaiveDate, u32> = BTreeMap::new();
-    for x in r {
-        *hours.entry(x.local.date()).or_insert(0) |= 1 << x.local.hour();
-    }
-    hours
-        .into_iter()
-        .map(|(d, mask)| (d, mask.count_ones() as usize >= MIN_HOURS_PER_DAY))
-        .collect()
 }
 
 /// Hours below `level` within one linear interval of `dt` hours from `a` to `b`.
@@ -102,73 +103,184 @@ fn below_in_interval(a: f64, b: f64, dt: f64, level: f64) -> f64 {
     }
 }
 
+/// The timing of one series, worked out once: its intervals that are not gaps and its local
+/// days with their completeness. Every set of values at these times (the readings as
+/// sampled, or each projection of them) is then evaluated on it.
+#[derive(Clone, Debug)]
+pub struct Clock {
+    /// Local clock hour (0–23) of each reading.
+    hour: Vec<usize>,
+    /// Index into `days` of each reading.
+    day_of: Vec<usize>,
+    /// (first reading of the interval, its length in hours) for every interval that is not a
+    /// gap; the second reading is the next one.
+    intervals: Vec<(usize, f64)>,
+    /// The local days of the series, ascending, and whether each is complete.
+    days: Vec<(NaiveDate, bool)>,
+}
+
+impl Clock {
+    /// The clock of readings at local times `t` (increasing order).
+    pub fn new(t: &[NaiveDateTime]) -> Result<Clock, ExposureError> {
+        let step = median_step_hours(t).ok_or(ExposureError::NotSubDaily)?;
+        if step >= 24.0 {
+            return Err(ExposureError::NotSubDaily);
+        }
+        let mut masks: BTreeMap<NaiveDate, u32> = BTreeMap::new();
+        for x in t {
+            *masks.entry(x.date()).or_insert(0) |= 1 << x.hour();
+        }
+        let days: Vec<(NaiveDate, bool)> = masks
+            .into_iter()
+            .map(|(d, m)| (d, m.count_ones() as usize >= MIN_HOURS_PER_DAY))
+            .collect();
+        if !days.iter().any(|(_, ok)| *ok) {
+            return Err(ExposureError::NoCompleteDay);
+        }
+        let day_of = t
+            .iter()
+            .map(|x| days.partition_point(|(d, _)| *d < x.date()))
+            .collect();
+        let intervals = t
+            .windows(2)
+            .enumerate()
+            .filter_map(|(i, w)| {
+                let [a, b] = w else { return None };
+                let dt = (*b - *a).num_seconds() as f64 / 3600.0;
+                (dt > 0.0 && dt <= MAX_STEP_FACTOR * step).then_some((i, dt))
+            })
+            .collect();
+        Ok(Clock {
+            hour: t.iter().map(|x| x.hour() as usize).collect(),
+            day_of,
+            intervals,
+            days,
+        })
+    }
+
+    /// Complete days of the series.
+    pub fn complete_days(&self) -> usize {
+        self.days.iter().filter(|(_, ok)| *ok).count()
+    }
+
+    /// Hours per day below each of `levels` and the share of time below it, for `values`
+    /// at the clock's times. An interval with a value that is not finite counts for nothing.
+    pub fn exposure(&self, values: &[f64], levels: &[f64]) -> Vec<Exposure> {
+        let nd = self.days.len();
+        let mut per_day = vec![0.0; nd * levels.len()];
+        let mut below = vec![0.0; levels.len()];
+        let mut covered = 0.0;
+        for &(i, dt) in &self.intervals {
+            let (Some(&a), Some(&b), Some(&d)) =
+                (values.get(i), values.get(i + 1), self.day_of.get(i))
+            else {
+                continue;
+            };
+            if !(a.is_finite() && b.is_finite()) {
+                continue;
+            }
+            covered += dt;
+            for (l, &level) in levels.iter().enumerate() {
+                let h = below_in_interval(a, b, dt, level);
+                below[l] += h;
+                if let Some(x) = per_day.get_mut(l * nd + d) {
+                    *x += h;
+                }
+            }
+        }
+        let days = self.complete_days();
+        levels
+            .iter()
+            .enumerate()
+            .map(|(l, _)| {
+                let sum: f64 = self
+                    .days
+                    .iter()
+                    .enumerate()
+                    .filter(|(_, (_, ok))| *ok)
+                    .map(|(d, _)| per_day.get(l * nd + d).copied().unwrap_or(0.0))
+                    .sum();
+                Exposure {
+                    hours_per_day_below: sum / days.max(1) as f64,
+                    share_below: if covered > 0.0 {
+                        below.get(l).copied().unwrap_or(0.0) / covered
+                    } else {
+                        f64::NAN
+                    },
+                    days,
+                }
+            })
+            .collect()
+    }
+
+    /// The mean of the finite values in each local clock hour (0–23); `None` for an hour
+    /// without any.
+    pub fn diel_cycle(&self, values: &[f64]) -> [Option<f64>; 24] {
+        mean_by_hour(
+            self.hour
+                .iter()
+                .copied()
+                .zip(values.iter().copied())
+                .filter(|(_, v)| v.is_finite()),
+        )
+    }
+
+    /// The lowest finite value of each complete day.
+    pub fn daily_minima(&self, values: &[f64]) -> Vec<(NaiveDate, f64)> {
+        let mut min = vec![f64::INFINITY; self.days.len()];
+        for (&d, &v) in self.day_of.iter().zip(values) {
+            if let Some(m) = min.get_mut(d)
+                && v.is_finite()
+            {
+                *m = m.min(v);
+            }
+        }
+        self.days
+            .iter()
+            .zip(min)
+            .filter(|((_, ok), m)| *ok && m.is_finite())
+            .map(|((d, _), m)| (*d, m))
+            .collect()
+    }
+}
+
+fn split(r: &[Reading]) -> (Vec<NaiveDateTime>, Vec<f64>) {
+    r.iter().map(|x| (x.local, x.value)).unzip()
+}
+
 /// Hours per day below `level` and the share of time below it, for readings in increasing
 /// time order.
 pub fn exposure(r: &[Reading], level: f64) -> Result<Exposure, ExposureError> {
-    let step = median_step_hours(r).ok_or(ExposureError::NotSubDaily)?;
-    if step >= 24.0 {
-        return Err(ExposureError::NotSubDaily);
-    }
-    let complete = complete_days(r);
-    let mut per_day: BTreeMap<NaiveDate, f64> = BTreeMap::new();
-    let (mut covered, mut below) = (0.0, 0.0);
-    for w in r.windows(2) {
-        let [a, b] = w else { continue };
-        let dt = (b.local - a.local).num_seconds() as f64 / 3600.0;
-        if dt <= 0.0 || dt > MAX_STEP_FACTOR * step {
-            continue;
-        }
-        let h = below_in_interval(a.value, b.value, dt, level);
-        covered += dt;
-        below += h;
-        *per_day.entry(a.local.date()).or_insert(0.0) += h;
-    }
-    let days: Vec<f64> = complete
-        .iter()
-        .filter(|(_, ok)| **ok)
-        .map(|(d, _)| per_day.get(d).copied().unwrap_or(0.0))
-        .collect();
-    if days.is_empty() {
-        return Err(ExposureError::NoCompleteDay);
-    }
-    Ok(Exposure {
-        hours_per_day_below: days.iter().sum::<f64>() / days.len() as f64,
-        share_below: if covered > 0.0 { below / covered } else { 0.0 },
-        days: days.len(),
-    })
+    let (t, v) = split(r);
+    Clock::new(&t)?
+        .exposure(&v, &[level])
+        .into_iter()
+        .next()
+        .ok_or(ExposureError::NoCompleteDay)
 }
 
 /// The mean of the readings in each local clock hour (0–23); `None` for an hour without any.
 pub fn diel_cycle(r: &[Reading]) -> [Option<f64>; 24] {
+    mean_by_hour(r.iter().map(|x| (x.local.hour() as usize, x.value)))
+}
+
+/// The mean of the values of each clock hour (0–23); `None` for an hour without any.
+fn mean_by_hour(pairs: impl Iterator<Item = (usize, f64)>) -> [Option<f64>; 24] {
     let mut sum = [0.0_f64; 24];
     let mut n = [0_usize; 24];
-    for x in r {
-        let h = x.local.hour() as usize;
+    for (h, v) in pairs {
         if let (Some(s), Some(c)) = (sum.get_mut(h), n.get_mut(h)) {
-            *s += x.value;
+            *s += v;
             *c += 1;
         }
     }
-    let mut out = [None; 24];
-    for h in 0..24 {
-        if n[h] > 0 {
-            out[h] = Some(sum[h] / n[h] as f64);
-        }
-    }
-    out
+    std::array::from_fn(|h| (n[h] > 0).then(|| sum[h] / n[h] as f64))
 }
 
-/// The lowest reading of each complete day.
+/// The lowest reading of each complete day (none when the series is not sub-daily).
 pub fn daily_minima(r: &[Reading]) -> Vec<(NaiveDate, f64)> {
-    let complete = complete_days(r);
-    let mut min: BTreeMap<NaiveDate, f64> = BTreeMap::new();
-    for x in r {
-        if complete.get(&x.local.date()).copied().unwrap_or(false) {
-            let m = min.entry(x.local.date()).or_insert(f64::INFINITY);
-            *m = m.min(x.value);
-        }
-    }
-    min.into_iter().collect()
+    let (t, v) = split(r);
+    Clock::new(&t).map_or_else(|_| Vec::new(), |c| c.daily_minima(&v))
 }
 
 #[cfg(test)]
