@@ -331,12 +331,15 @@ impl YearConditions {
         warming: Option<&Warming>,
         methods: &MethodSet,
         year: i32,
+        mode: Disequilibrium,
     ) -> Result<YearConditions, OutlookError> {
         let change = warming.map_or(0.0, |w| w.change_between(rec.sample_year, year));
-        YearConditions::with_change(rec, pathway, observed, change, methods, year)
+        YearConditions::with_change(rec, pathway, observed, change, methods, year, mode)
     }
 
-    /// Conditions of `rec` in `year` with `change_c` °C added to its temperature.
+    /// Conditions of `rec` in `year` with `change_c` °C added to its temperature. The source
+    /// water's conditions (three more constant sets) are worked out only for the rule that
+    /// uses them, [`Disequilibrium::SourceOffsets`].
     pub fn with_change(
         rec: &ProjectionRecord,
         pathway: &Pathway,
@@ -344,13 +347,15 @@ impl YearConditions {
         change_c: f64,
         methods: &MethodSet,
         year: i32,
+        mode: Disequilibrium,
     ) -> Result<YearConditions, OutlookError> {
         let xco2 = pathway
             .xco2_ppm(observed, year)
             .map_err(OutlookError::Pathway)?;
         let temp_c = rec.temp_c + change_c;
         let constants = Constants::new(&rec.conditions_at(temp_c), methods);
-        let source = rec.source.as_ref().map(|sw| {
+        let needs_source = mode == Disequilibrium::SourceOffsets;
+        let source = rec.source.as_ref().filter(|_| needs_source).map(|sw| {
             let t = sw.temp_c + change_c;
             SourceYear {
                 air: pco2_air_uatm(xco2, t, sw.salinity),
@@ -493,7 +498,7 @@ pub fn project_record(
 ) -> Result<ProjectedPoint, OutlookError> {
     rec.validate()?;
     let anchor = RecordAnchor::new(rec, pathway, observed)?;
-    let yc = YearConditions::new(rec, pathway, observed, warming, methods, year)?;
+    let yc = YearConditions::new(rec, pathway, observed, warming, methods, year, mode)?;
     let state = project_state(rec, &anchor, &Start::central(rec), &yc, None, mode, offsets)
         .map_err(|message| OutlookError::Solve {
             record: rec.label.clone(),

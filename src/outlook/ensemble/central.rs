@@ -90,14 +90,26 @@ pub(super) fn present_values(
 /// Projects every record under pathway `p` at every knot year and variant, by rule `mode`
 /// (the settings' rule, or another for the comparison of the rules).
 pub(super) fn project_all(prep: &Prepared<'_>, p: usize, mode: Disequilibrium) -> Central {
-    let nk = prep.knots.len();
-    let nv = prep.variants.len();
+    project_at(prep, p, mode, &prep.knots, prep.variants.len())
+}
+
+/// Every record under pathway `p` by rule `mode` at the years `knots` only, for the first
+/// `nv` variants (1: the base case only). `Central::get`'s `k` then indexes `knots`.
+pub(super) fn project_at(
+    prep: &Prepared<'_>,
+    p: usize,
+    mode: Disequilibrium,
+    knots: &[i32],
+    nv: usize,
+) -> Central {
+    let nk = knots.len();
+    let nv = nv.clamp(1, prep.variants.len().max(1));
     let per_record: Vec<(Vec<Values>, usize, Option<String>)> = prep
         .site
         .records
         .par_iter()
         .enumerate()
-        .map(|(ri, rec)| project_one(prep, p, mode, ri, rec))
+        .map(|(ri, rec)| project_one(prep, p, mode, ri, rec, knots, nv))
         .collect();
     let mut at = vec![Vec::with_capacity(prep.site.records.len() * nk); nv];
     let mut failures = 0;
@@ -129,10 +141,11 @@ fn project_one(
     mode: Disequilibrium,
     ri: usize,
     rec: &ProjectionRecord,
+    knots: &[i32],
+    nv: usize,
 ) -> (Vec<Values>, usize, Option<String>) {
     let (site, s) = (prep.site, prep.s);
-    let nv = prep.variants.len();
-    let mut out = Vec::with_capacity(prep.knots.len() * nv);
+    let mut out = Vec::with_capacity(knots.len() * nv);
     let mut failures = 0;
     let mut first = None;
     let (Some(spec), Some(anchor)) = (
@@ -151,7 +164,7 @@ fn project_one(
             ));
         }
     };
-    for &year in &prep.knots {
+    for &year in knots {
         let yc = match YearConditions::new(
             rec,
             &spec.pathway,
@@ -159,6 +172,7 @@ fn project_one(
             warming,
             &site.methods,
             year,
+            mode,
         ) {
             Ok(c) => c,
             Err(e) => {
@@ -168,7 +182,7 @@ fn project_one(
             }
         };
         let start = Start::central(rec);
-        for v in &prep.variants {
+        for v in prep.variants.iter().take(nv) {
             let offsets = v.offsets_for(rec.season, year);
             match project_state(rec, anchor, &start, &yc, None, mode, offsets) {
                 Ok(st) => out.push(values_of(&st, yc.temp_c)),

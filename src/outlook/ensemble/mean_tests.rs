@@ -230,6 +230,7 @@ fn constants_through_the_representative_match_direct_solves() {
                         None,
                         &site.methods,
                         2050,
+                        Disequilibrium::Ratio,
                     )
                     .unwrap();
                     let pco2 = a.project_pco2(r.pco2, yc.pco2_air, Disequilibrium::Ratio);

@@ -6,7 +6,7 @@
 
 use super::super::projection::Disequilibrium;
 use super::super::result::{PathwayId, RuleComparison};
-use super::central::{Central, OMEGA_AR, project_all};
+use super::central::{Central, OMEGA_AR, project_at};
 use super::prepare::{Group, Prepared};
 
 /// The group's time-weighted mean Omega_ar at computed year `k` (base case), over the
@@ -32,21 +32,23 @@ pub(super) fn compare_rules(prep: &Prepared<'_>, centrals: &[Central]) -> Vec<Ru
     let s = prep.s;
     let mut out = Vec::new();
     for (p, own) in centrals.iter().enumerate().take(s.pathways.len()) {
+        // The other two rules are needed at the horizon years and for the base case only.
         let others: Vec<(Disequilibrium, Central)> = Disequilibrium::ALL
             .into_iter()
             .filter(|m| *m != s.mode)
-            .map(|m| (m, project_all(prep, p, m)))
+            .map(|m| (m, project_at(prep, p, m, &s.years, 1)))
             .collect();
-        let by_rule = |m: Disequilibrium| -> &Central {
-            others.iter().find(|(x, _)| *x == m).map_or(own, |(_, c)| c)
-        };
         for g in &prep.groups {
-            for (&year, &k) in s.years.iter().zip(&prep.horizon_knot) {
+            for (h, (&year, &k)) in s.years.iter().zip(&prep.horizon_knot).enumerate() {
+                let mean = |m: Disequilibrium| match others.iter().find(|(x, _)| *x == m) {
+                    Some((_, c)) => group_mean(g, c, h),
+                    None => group_mean(g, own, k),
+                };
                 out.push(RuleComparison {
                     pathway: PathwayId(p),
                     group: g.id,
                     year,
-                    omega_ar: Disequilibrium::ALL.map(|m| group_mean(g, by_rule(m), k)),
+                    omega_ar: Disequilibrium::ALL.map(mean),
                 });
             }
         }

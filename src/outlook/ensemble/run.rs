@@ -174,6 +174,7 @@ impl Prepared<'_> {
                 change(year) + dt,
                 &site.methods,
                 year,
+                s.mode,
             )
             .ok()
         };
