@@ -331,11 +331,15 @@ fn grouped_findings(loaded: &LoadedSite) -> Vec<QcFinding> {
     let (before, after) = site.split_at(loaded.qc_position.min(site.len()));
     let site_level = |groups: &mut Vec<Group>, ds: &[crate::diag::Diagnostic]| {
         for d in ds {
-            let key: String = d
-                .message
-                .chars()
-                .map(|c| if c.is_ascii_digit() { '#' } else { c })
-                .collect();
+            // Site-level diagnostics are few and each says something of its own: only
+            // repeats of the very same finding (same severity, field and words) are merged.
+            // Nothing here reads numbers or meaning out of the message.
+            let key = format!(
+                "site:{:?}:{}:{}",
+                d.severity,
+                d.field.as_deref().unwrap_or(""),
+                d.message
+            );
             let file = d.file.as_deref().map(display_path);
             add(groups, key, d.severity, &d.message, file, d.line);
         }
