@@ -42,6 +42,7 @@ fn sensor(
             continuous,
             minute: Some(u16::try_from(t.hour() * 60 + t.minute()).unwrap()),
         }),
+        source: None,
     }
 }
 
