@@ -9,7 +9,8 @@ use super::{crossing_text, fig, missing_cell, omega_class, pathway_label, quant_
 use crate::report::figures::{Figure, SiteFigures};
 use crate::report::fmt;
 use crate::report::model::{
-    CalcUnit, CalcificationOutlook, QcLevel, ReportModel, Setting, SiteReport, Stat,
+    CalcUnit, CalcificationOutlook, Crossing, CrossingYear, QcLevel, ReportModel, Setting,
+    SiteReport, Stat,
 };
 use crate::report::palette;
 use crate::report::ranking::limiting_omega;
@@ -70,6 +71,8 @@ pub(super) fn site_view(
         })).collect::<Vec<_>>(),
         "crossings": crossing_list(model, site),
         "crossing_table": crossing_table(model, site),
+        "crossing_levels": crossing_levels(model, site).0,
+        "crossing_same": crossing_levels(model, site).1,
         "probabilities": probability_rows(model, site),
         "calcification": calcification,
         "scenarios": scenario_views(model, site),
@@ -183,8 +186,69 @@ fn crossing_list(model: &ReportModel, site: &SiteReport) -> Vec<Value> {
         .collect()
 }
 
+/// Order of crossing years for a span: already below, then years, then "not by".
+fn crossing_order(c: CrossingYear) -> (u8, i32) {
+    match c {
+        CrossingYear::AlreadyBelow => (0, 0),
+        CrossingYear::Year(y) => (1, y),
+        CrossingYear::NotBy(y) => (2, y),
+    }
+}
+
+/// The crossing table's levels split in two: those shown as columns (`.0`, as printed) and,
+/// for a level whose median is the same in every row, one sentence instead of a column
+/// (`.1`), with the span of the members' early and late years.
+fn crossing_levels(model: &ReportModel, site: &SiteReport) -> (Vec<String>, Vec<String>) {
+    let mut shown = Vec::new();
+    let mut same = Vec::new();
+    for &level in &model.thresholds.levels {
+        let cells: Vec<&Crossing> = site
+            .crossings
+            .iter()
+            .filter(|c| c.threshold == level)
+            .collect();
+        let collapsed = match cells.split_first() {
+            Some((first, rest))
+                if !rest.is_empty() && rest.iter().all(|c| c.median == first.median) =>
+            {
+                let lo = cells
+                    .iter()
+                    .map(|c| c.early)
+                    .min_by_key(|c| crossing_order(*c));
+                let hi = cells
+                    .iter()
+                    .map(|c| c.late)
+                    .max_by_key(|c| crossing_order(*c));
+                let span = match (lo, hi) {
+                    (Some(lo), Some(hi)) if lo == hi && lo == first.median => {
+                        "and so do 5 % and 95 % of the members".to_string()
+                    }
+                    (Some(lo), Some(hi)) => format!(
+                        "the years by which 5 % and 95 % of the members have crossed span {} to {}",
+                        crossing_text(lo),
+                        crossing_text(hi)
+                    ),
+                    _ => String::new(),
+                };
+                Some(format!(
+                    "Ω_ar below {}: the median is \u{201c}{}\u{201d} in every pathway and season; {span}.",
+                    fmt::level(level),
+                    crossing_text(first.median)
+                ))
+            }
+            _ => None,
+        };
+        match collapsed {
+            Some(sentence) => same.push(sentence),
+            None => shown.push(fmt::level(level)),
+        }
+    }
+    (shown, same)
+}
+
 fn crossing_table(model: &ReportModel, site: &SiteReport) -> Vec<Value> {
     let seasons: Vec<&str> = site.baseline.iter().map(|b| b.season.as_str()).collect();
+    let shown = crossing_levels(model, site).0;
     // The same crossings as a table: one row per pathway and season, one cell per level
     // (median year, with the early and late estimates), so that a site with twelve seasons
     // gets 36 rows rather than 108.
@@ -196,6 +260,7 @@ fn crossing_table(model: &ReportModel, site: &SiteReport) -> Vec<Value> {
                 .thresholds
                 .levels
                 .iter()
+                .filter(|level| shown.contains(&fmt::level(**level)))
                 .map(|level| {
                     site.crossings
                         .iter()
@@ -411,4 +476,56 @@ fn calc_view(model: &ReportModel, c: &CalcificationOutlook, figure: Option<&Figu
         "any_extrapolated": any_extrapolated,
         "figure": figure.map(fig),
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::report::example::example_model;
+
+    fn crossing(
+        season: &str,
+        threshold: f64,
+        m: CrossingYear,
+        e: CrossingYear,
+        l: CrossingYear,
+    ) -> Crossing {
+        Crossing {
+            pathway: "p".into(),
+            season: season.into(),
+            threshold,
+            median: m,
+            early: e,
+            late: l,
+        }
+    }
+
+    #[test]
+    fn a_level_with_one_median_everywhere_becomes_a_sentence() {
+        use CrossingYear::{AlreadyBelow as A, NotBy, Year};
+        let mut model = example_model(1);
+        model.thresholds.levels = vec![4.0, 3.0];
+        let site = &mut model.sites[0];
+        // Level 4.0: the median is "already below" in both rows, the late years 2037 and 2041;
+        // level 3.0: medians 2050 and "not by 2100" differ, so it stays a column.
+        site.crossings = vec![
+            crossing("wet", 4.0, A, A, Year(2037)),
+            crossing("dry", 4.0, A, A, Year(2041)),
+            crossing("wet", 3.0, Year(2050), Year(2040), NotBy(2100)),
+            crossing("dry", 3.0, NotBy(2100), Year(2060), NotBy(2100)),
+        ];
+        let (shown, same) = crossing_levels(&model, &model.sites[0]);
+        assert_eq!(shown, vec![fmt::level(3.0)]);
+        assert_eq!(same.len(), 1);
+        assert!(
+            same[0].starts_with(&format!("Ω_ar below {}", fmt::level(4.0))),
+            "{}",
+            same[0]
+        );
+        assert!(
+            same[0].contains("span already below to 2041"),
+            "{}",
+            same[0]
+        );
+    }
 }
