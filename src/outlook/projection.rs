@@ -454,9 +454,9 @@ pub fn project_state(
     mode: Disequilibrium,
     offsets: Option<&Offsets>,
 ) -> Result<CarbonateState, String> {
-    let k = pt.map_or(yc.constants, |p| yc.constants.perturbed(p));
     match mode {
         Disequilibrium::Ratio | Disequilibrium::Additive => {
+            let k = pt.map_or(yc.constants, |p| yc.constants.perturbed(p));
             let pco2 = anchor.project_pco2(start.pco2, yc.pco2_air, mode);
             solve_projected(start.ta, pco2, offsets, &k)
         }

@@ -41,6 +41,7 @@ pub(super) fn site_view(
     } else {
         Vec::new()
     };
+    let (shown_levels, same_levels) = crossing_levels(model, site);
     json!({
         "id": site.id,
         "name": site.name,
@@ -70,9 +71,9 @@ pub(super) fn site_view(
             "spread": fmt::number(r.spread, 3),
         })).collect::<Vec<_>>(),
         "crossings": crossing_list(model, site),
-        "crossing_table": crossing_table(model, site),
-        "crossing_levels": crossing_levels(model, site).0,
-        "crossing_same": crossing_levels(model, site).1,
+        "crossing_table": crossing_table(model, site, &shown_levels),
+        "crossing_levels": shown_levels,
+        "crossing_same": same_levels,
         "probabilities": probability_rows(model, site),
         "calcification": calcification,
         "scenarios": scenario_views(model, site),
@@ -246,9 +247,9 @@ fn crossing_levels(model: &ReportModel, site: &SiteReport) -> (Vec<String>, Vec<
     (shown, same)
 }
 
-fn crossing_table(model: &ReportModel, site: &SiteReport) -> Vec<Value> {
+/// `shown`: the levels shown as columns, as printed ([`crossing_levels`]).
+fn crossing_table(model: &ReportModel, site: &SiteReport, shown: &[String]) -> Vec<Value> {
     let seasons: Vec<&str> = site.baseline.iter().map(|b| b.season.as_str()).collect();
-    let shown = crossing_levels(model, site).0;
     // The same crossings as a table: one row per pathway and season, one cell per level
     // (median year, with the early and late estimates), so that a site with twelve seasons
     // gets 36 rows rather than 108.
