@@ -88,12 +88,22 @@ fn munhoven_initial_h(ta: f64, dic: f64, k: &Constants) -> f64 {
     if h.is_finite() && h > 0.0 { h } else { 1e-8 }
 }
 
+/// What the Newton iteration saw of `g`'s sign: a point with g > 0 (so g(lo) > 0 for the
+/// decreasing `g`) and a point with g < 0 (so g(hi) < 0). A side seen needs no check at the
+/// end of the window.
+#[derive(Default)]
+struct Seen {
+    above: bool,
+    below: bool,
+}
+
 /// Find the [H⁺] where `g` (decreasing in H on `[lo, hi]`, g(lo) > 0 > g(hi)) is zero.
 fn safeguarded_newton(
     mut lo: f64,
     mut hi: f64,
     h0: f64,
     g: impl Fn(f64) -> (f64, f64),
+    seen: &mut Seen,
 ) -> Result<f64, ChemError> {
     let mut h = if h0 > lo && h0 < hi {
         h0
@@ -106,12 +116,16 @@ fn safeguarded_newton(
             break;
         }
         if val == 0.0 {
+            seen.above = true;
+            seen.below = true;
             return Ok(h);
         }
         if val > 0.0 {
             lo = h;
+            seen.above = true;
         } else {
             hi = h;
+            seen.below = true;
         }
         let newton = h - val / der;
         let next = if newton.is_finite() && newton > lo && newton < hi {
@@ -129,27 +143,38 @@ fn safeguarded_newton(
     ))
 }
 
+/// [H⁺] at the ends of the pH search window, worked out once.
 fn h_bounds() -> (f64, f64) {
-    (10f64.powf(-PH_SEARCH.1), 10f64.powf(-PH_SEARCH.0))
+    static BOUNDS: std::sync::LazyLock<(f64, f64)> =
+        std::sync::LazyLock::new(|| (10f64.powf(-PH_SEARCH.1), 10f64.powf(-PH_SEARCH.0)));
+    *BOUNDS
 }
 
 /// Solve `g(H) = 0` for g decreasing in H over the pH search window, or explain which
 /// side the inputs fall off.
+///
+/// The iteration runs first; an end of the window is evaluated only when the iteration
+/// never saw `g` with that end's sign (for a decreasing `g`, a point with g > 0 implies
+/// g(lo) > 0, and one with g < 0 implies g(hi) < 0). The bracket does not depend on those
+/// checks, so the root is the same as with both ends checked first, and so is the message
+/// when an end fails (it takes precedence over the iteration's own error, as before).
 fn solve_decreasing(h0: f64, g: impl Fn(f64) -> (f64, f64), what: &str) -> Result<f64, ChemError> {
     let (lo, hi) = h_bounds();
-    if g(lo).0 < 0.0 {
+    let mut seen = Seen::default();
+    let root = safeguarded_newton(lo, hi, h0, &g, &mut seen);
+    if !seen.above && g(lo).0 < 0.0 {
         return Err(ChemError::NoSolution(format!(
             "no seawater state matches {what}: alkalinity is too high (pH_T would exceed {})",
             PH_SEARCH.1
         )));
     }
-    if g(hi).0 > 0.0 {
+    if !seen.below && g(hi).0 > 0.0 {
         return Err(ChemError::NoSolution(format!(
             "no seawater state matches {what}: alkalinity is too low (pH_T would be below {})",
             PH_SEARCH.0
         )));
     }
-    safeguarded_newton(lo, hi, h0, g)
+    root
 }
 
 /// Every output from [H⁺]T and DIC (both mol/kg).
@@ -200,8 +225,9 @@ struct Known {
 /// the offending parameter and limit; no NaN or infinite value is ever returned.
 pub fn solve_pair(a: Input, b: Input, k: &Constants) -> Result<CarbonateState, ChemError> {
     let mut known = Known::default();
-    let mut seen: Vec<&'static str> = Vec::with_capacity(2);
-    for input in [a, b] {
+    // The slots filled so far (two at most; no allocation on this per-row path).
+    let mut seen: [Option<&'static str>; 2] = [None; 2];
+    for (i, input) in [a, b].into_iter().enumerate() {
         let col = input.column();
         let v = input.value();
         limits::check(col, v).map_err(ChemError::OutOfRange)?;
@@ -209,7 +235,7 @@ pub fn solve_pair(a: Input, b: Input, k: &Constants) -> Result<CarbonateState, C
             Input::Pco2(_) | Input::Fco2(_) => "co2",
             _ => col,
         };
-        if let Some(first) = seen.iter().find(|s| **s == slot_name) {
+        if let Some(first) = seen.iter().flatten().find(|s| **s == slot_name) {
             let first_col = if *first == "co2" {
                 match a {
                     Input::Pco2(_) => "pco2",
@@ -221,7 +247,9 @@ pub fn solve_pair(a: Input, b: Input, k: &Constants) -> Result<CarbonateState, C
             };
             return Err(ChemError::InvalidPair(first_col, col));
         }
-        seen.push(slot_name);
+        if let Some(slot) = seen.get_mut(i) {
+            *slot = Some(slot_name);
+        }
         match input {
             Input::Ta(v) => known.ta = Some(v * 1e-6),
             Input::Dic(v) => known.dic = Some(v * 1e-6),
@@ -262,11 +290,14 @@ pub fn solve_pair(a: Input, b: Input, k: &Constants) -> Result<CarbonateState, C
 
 /// Accepted pH_T range of a solution: the same as the input limit for pH_T.
 fn ph_result_range() -> (f64, f64) {
-    limits::LIMITS
-        .iter()
-        .find(|(c, ..)| *c == "ph_t")
-        .map(|&(_, lo, hi, _)| (lo, hi))
-        .unwrap_or((6.0, 9.5))
+    static RANGE: std::sync::LazyLock<(f64, f64)> = std::sync::LazyLock::new(|| {
+        limits::LIMITS
+            .iter()
+            .find(|(c, ..)| *c == "ph_t")
+            .map(|&(_, lo, hi, _)| (lo, hi))
+            .unwrap_or((6.0, 9.5))
+    });
+    *RANGE
 }
 
 fn find_h_and_dic(kn: &Known, k: &Constants) -> Result<(f64, f64), ChemError> {
@@ -325,7 +356,8 @@ fn find_h_and_dic(kn: &Known, k: &Constants) -> Result<(f64, f64), ChemError> {
                         let (v, d) = g(x);
                         (-v, -d)
                     };
-                    let root = safeguarded_newton(h, prev_h, (h * prev_h).sqrt(), neg)?;
+                    let mut seen = Seen::default();
+                    let root = safeguarded_newton(h, prev_h, (h * prev_h).sqrt(), neg, &mut seen)?;
                     return Ok((root, co3 * alpha_sum(root) / (k1 * k2)));
                 }
                 prev_h = h;
