@@ -140,11 +140,18 @@ fn settings_failure(site: LoadedSite, ds: Diagnostics) -> LoadFailure {
 /// Runs the outlook of a checked site.
 pub fn project(checked: Checked, progress: &dyn Progress) -> Result<SiteRun, Failure> {
     let input: SiteInput = outlook::from_site::site_input(&checked.loaded);
-    let mut outlook =
-        outlook::run(&input, &checked.settings, progress).map_err(Failure::Outlook)?;
-    if let Some(prepared) = &checked.thermal {
-        outlook.heat = Some(thermal::site::site_heat(prepared, &checked.settings));
-    }
+    // The heat outlook needs nothing of the chemistry's: the two run side by side.
+    let (chemistry, heat) = rayon::join(
+        || outlook::run(&input, &checked.settings, progress),
+        || {
+            checked
+                .thermal
+                .as_ref()
+                .map(|prepared| thermal::site::site_heat(prepared, &checked.settings))
+        },
+    );
+    let mut outlook = chemistry.map_err(Failure::Outlook)?;
+    outlook.heat = heat;
     Ok(SiteRun {
         loaded: checked.loaded,
         outlook,

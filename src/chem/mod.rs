@@ -19,6 +19,7 @@ pub mod density;
 pub mod gas;
 pub mod limits;
 pub mod measured;
+mod memo;
 pub mod pressure;
 pub mod scales;
 mod solver;
@@ -28,6 +29,7 @@ use std::str::FromStr;
 
 use serde::{Deserialize, Serialize};
 
+pub use memo::ConstantsMemo;
 pub use solver::{solve_from_h, solve_pair};
 
 use constants as c;
@@ -282,12 +284,36 @@ impl MethodSet {
         v
     }
 
+    /// Each fitted constant of this set: (constant, citation, (temperature °C, salinity)
+    /// fitted ranges). Mucci (1983) is fitted 5–40 °C, S 5–44; the KSO4/KB/KW fits cover
+    /// 0–45 °C, S 5–45.
+    pub fn fitted_ranges(&self) -> [(&'static str, &'static str, FittedRange); 4] {
+        use catalogue::MethodKind as K;
+        [
+            (
+                K::CarbonicAcid.constant(),
+                self.k1k2.citation(),
+                self.k1k2.fitted_range(),
+            ),
+            (
+                K::TotalBoron.constant(),
+                self.boron.citation(),
+                self.boron.fitted_range(),
+            ),
+            (
+                K::HydrogenFluoride.constant(),
+                self.kf.citation(),
+                self.kf.fitted_range(),
+            ),
+            ("Ksp", "Mucci 1983", ((5.0, 40.0), (5.0, 44.0))),
+        ]
+    }
+
     /// Warnings for conditions outside the fitted ranges of this set's constants (the
-    /// sample is still solved; the caller flags it). Mucci (1983) is fitted 5–40 °C,
-    /// S 5–44; the KSO4/KB/KW fits cover 0–45 °C, S 5–45.
+    /// sample is still solved; the caller flags it).
     pub fn range_warnings(&self, c: &Conditions) -> Vec<String> {
         let mut out = Vec::new();
-        let mut check = |what: &str, cite: &str, ((t0, t1), (s0, s1)): ((f64, f64), (f64, f64))| {
+        for (what, cite, ((t0, t1), (s0, s1))) in self.fitted_ranges() {
             if c.temp_c < t0 || c.temp_c > t1 {
                 out.push(format!(
                     "temp_c {:.2} °C is outside the {what} fitted range {t0}–{t1} °C ({cite})",
@@ -300,26 +326,26 @@ impl MethodSet {
                     c.salinity
                 ));
             }
-        };
-        use catalogue::MethodKind as K;
-        check(
-            K::CarbonicAcid.constant(),
-            self.k1k2.citation(),
-            self.k1k2.fitted_range(),
-        );
-        check(
-            K::TotalBoron.constant(),
-            self.boron.citation(),
-            self.boron.fitted_range(),
-        );
-        check(
-            K::HydrogenFluoride.constant(),
-            self.kf.citation(),
-            self.kf.fitted_range(),
-        );
-        check("Ksp", "Mucci 1983", ((5.0, 40.0), (5.0, 44.0)));
+        }
         out
     }
+}
+
+/// A constant's fitted ranges: ((lowest, highest) temperature °C, (lowest, highest)
+/// salinity).
+pub type FittedRange = ((f64, f64), (f64, f64));
+
+/// Whether [`MethodSet::range_warnings`] would give no warning at (`temp_c`, `salinity`)
+/// for the ranges `ranges` of [`MethodSet::fitted_ranges`] (worked out once by a caller
+/// that checks many conditions).
+pub fn inside_fitted_ranges(
+    ranges: &[(&'static str, &'static str, FittedRange)],
+    temp_c: f64,
+    salinity: f64,
+) -> bool {
+    ranges.iter().all(|(_, _, ((t0, t1), (s0, s1)))| {
+        !(temp_c < *t0 || temp_c > *t1 || salinity < *s0 || salinity > *s1)
+    })
 }
 
 /// Every constant needed to solve the system at one (T, S, P). Acid constants are on the

@@ -9,6 +9,8 @@
 //!
 //! Problems are reported as diagnostics naming the site file and the field.
 
+use std::sync::Arc;
+
 use chrono::{Datelike, Timelike};
 
 use crate::chem::Input;
@@ -33,7 +35,7 @@ pub fn from_loaded_site(
 /// The records of a loaded site as the outlook takes them.
 pub fn site_input(loaded: &LoadedSite) -> SiteInput {
     let fit = loaded.baseline.ta_salinity.as_ref();
-    let folder = site_folder(loaded);
+    let mut files = FileLabels::new(site_folder(loaded));
     let mut stations: Vec<&str> = Vec::new();
     // Problems with the source water are reported by `projection_settings`, which runs first.
     let sources = super::source_match::source_table(loaded).ok().flatten();
@@ -41,7 +43,7 @@ pub fn site_input(loaded: &LoadedSite) -> SiteInput {
         .samples
         .iter()
         .filter_map(|smp| {
-            let mut r = projectable(smp, fit, folder)?.ok()?;
+            let mut r = projectable(smp, fit, &mut files)?.ok()?;
             if let Some(u) = r.unit.as_mut() {
                 u.station = station_number(&mut stations, &smp.station);
             }
@@ -69,18 +71,44 @@ fn site_folder(loaded: &LoadedSite) -> &std::path::Path {
         .unwrap_or(std::path::Path::new("."))
 }
 
+/// Record files named relative to the site file's folder, as the site file names them (no
+/// folder of the machine the run was made on); worked out once per file, not per row (it
+/// may ask the system for the working folder).
+struct FileLabels<'a> {
+    folder: &'a std::path::Path,
+    last: Option<(Arc<std::path::Path>, String)>,
+}
+
+impl<'a> FileLabels<'a> {
+    fn new(folder: &'a std::path::Path) -> FileLabels<'a> {
+        FileLabels { folder, last: None }
+    }
+
+    /// The name of `file` for record labels.
+    fn of(&mut self, file: &Arc<std::path::Path>) -> &str {
+        let known = self.last.as_ref().is_some_and(|(f, _)| f == file);
+        if !known {
+            let name = crate::fsio::relative_to(self.folder, file)
+                .display()
+                .to_string();
+            self.last = Some((Arc::clone(file), name));
+        }
+        self.last.as_ref().map_or("", |(_, name)| name.as_str())
+    }
+}
+
 /// The projection record of a sample the outlook uses (solved, above the site's salinity
-/// floor), or why the projection cannot take it; `None` for rows the site left out. `folder`:
-/// the site file's folder, for the record's label.
+/// floor), or why the projection cannot take it; `None` for rows the site left out. `files`:
+/// the record files' names for the record's label.
 fn projectable(
     smp: &Sample,
     fit: Option<&TaSalinityFit>,
-    folder: &std::path::Path,
+    files: &mut FileLabels<'_>,
 ) -> Option<Result<ProjectionRecord, String>> {
     if !smp.is_used() {
         return None;
     }
-    let r = record_of(smp, fit, folder)?;
+    let r = record_of(smp, fit, files.of(&smp.source_file))?;
     Some(r.validate().map(|()| r).map_err(|e| e.to_string()))
 }
 
@@ -89,11 +117,11 @@ fn projectable(
 /// that `check` shows what `project` will leave out.
 pub fn rows_left_out(loaded: &LoadedSite) -> Diagnostics {
     let fit = loaded.baseline.ta_salinity.as_ref();
-    let folder = site_folder(loaded);
+    let mut files = FileLabels::new(site_folder(loaded));
     loaded
         .samples
         .iter()
-        .filter_map(|smp| match projectable(smp, fit, folder)? {
+        .filter_map(|smp| match projectable(smp, fit, &mut files)? {
             Ok(_) => None,
             Err(m) => Some(
                 Diagnostic::warning(format!("{m}; the row is left out of the outlook"))
@@ -118,10 +146,11 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
     let site_file = &loaded.site;
 
     let fit = loaded.baseline.ta_salinity.as_ref();
+    let mut files = FileLabels::new(site_folder(loaded));
     if !loaded
         .samples
         .iter()
-        .any(|smp| matches!(projectable(smp, fit, site_folder(loaded)), Some(Ok(_))))
+        .any(|smp| matches!(projectable(smp, fit, &mut files), Some(Ok(_))))
     {
         return Err(err(
             "records",
@@ -216,11 +245,7 @@ pub fn projection_settings(loaded: &LoadedSite) -> Result<ProjectionSettings, Di
 }
 
 /// The projection record of one sample (`None` when its state was not solved).
-fn record_of(
-    smp: &Sample,
-    fit: Option<&TaSalinityFit>,
-    folder: &std::path::Path,
-) -> Option<ProjectionRecord> {
+fn record_of(smp: &Sample, fit: Option<&TaSalinityFit>, file: &str) -> Option<ProjectionRecord> {
     let st = smp.state?;
     let m = &smp.measured;
     let ta = if smp.ta_estimated {
@@ -245,12 +270,7 @@ fn record_of(
         None
     };
     Some(ProjectionRecord {
-        label: format!(
-            "{}:{} (station {})",
-            crate::fsio::relative_to(folder, &smp.source_file).display(),
-            smp.line,
-            smp.station
-        ),
+        label: format!("{file}:{} (station {})", smp.line, smp.station),
         season: smp.season,
         sample_year: smp.time.year(),
         temp_c: smp.temp_c,

@@ -30,7 +30,9 @@ use crate::chem::{self, CarbonateState, Conditions, Constants, Input, MethodSet,
 use super::OutlookError;
 use super::pathways::{Observed, Pathway};
 use super::scenario::Offsets;
-use super::source_water::{HeldStart, SourceAnchor, SourceWater, SourceYear, offsets_held_state};
+use super::source_water::{
+    HeldOffsets, HeldStart, SourceAnchor, SourceWater, SourceYear, offsets_held_state,
+};
 use super::warming::Warming;
 
 /// How the record's air–sea disequilibrium is carried into the future.
@@ -248,6 +250,24 @@ pub fn pco2_air_uatm(xco2_ppm: f64, temp_c: f64, salinity: f64) -> f64 {
     xco2_ppm * (1.0 - chem::gas::vapour_pressure_atm(temp_c, salinity))
 }
 
+/// The central constants of a record with source water at its sampling conditions and of
+/// its source water at the source's: the same under every pathway.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct SamplingConstants {
+    pub source: Constants,
+    pub reef: Constants,
+}
+
+impl SamplingConstants {
+    /// The sampling constants of `rec` (`None`: the record has no source water).
+    pub fn of(rec: &ProjectionRecord, methods: &MethodSet) -> Option<SamplingConstants> {
+        rec.source.as_ref().map(|sw| SamplingConstants {
+            source: Constants::new(&sw.conditions_at(sw.temp_c), methods),
+            reef: Constants::new(&rec.conditions_at(rec.temp_c), methods),
+        })
+    }
+}
+
 /// What a record brings to every horizon year of one pathway, computed once.
 #[derive(Clone, Debug)]
 pub struct RecordAnchor {
@@ -260,17 +280,31 @@ pub struct RecordAnchor {
 }
 
 impl RecordAnchor {
-    /// The anchor of `rec` under `pathway`.
+    /// The anchor of `rec` under `pathway` (`methods`: the constant set, for the source
+    /// water's sampling constants).
     pub fn new(
         rec: &ProjectionRecord,
         pathway: &Pathway,
         observed: &Observed,
+        methods: &MethodSet,
+    ) -> Result<RecordAnchor, OutlookError> {
+        let sampling = SamplingConstants::of(rec, methods);
+        RecordAnchor::with_constants(rec, pathway, observed, &sampling)
+    }
+
+    /// [`RecordAnchor::new`] with the sampling constants worked out already (they do not
+    /// depend on the pathway).
+    pub fn with_constants(
+        rec: &ProjectionRecord,
+        pathway: &Pathway,
+        observed: &Observed,
+        sampling: &Option<SamplingConstants>,
     ) -> Result<RecordAnchor, OutlookError> {
         let x = pathway.xco2_ppm(observed, rec.sample_year).map_err(|e| {
             OutlookError::Input(format!("{}: sampling-year atmosphere: {e}", rec.label))
         })?;
-        let source = match &rec.source {
-            Some(sw) => {
+        let source = match (&rec.source, sampling) {
+            (Some(sw), Some(k)) => {
                 let own = pathway.xco2_ppm(observed, sw.sample_year).map_err(|e| {
                     OutlookError::Input(format!(
                         "{}: source-water sampling-year atmosphere: {e}",
@@ -280,9 +314,11 @@ impl RecordAnchor {
                 Some(SourceAnchor {
                     air_own_sample: pco2_air_uatm(own, sw.temp_c, sw.salinity),
                     air_reef_sample: pco2_air_uatm(x, sw.temp_c, sw.salinity),
+                    k_sample: k.source,
+                    k_reef_sample: k.reef,
                 })
             }
-            None => None,
+            _ => None,
         };
         Ok(RecordAnchor {
             xco2_sample_ppm: x,
@@ -338,7 +374,7 @@ impl YearConditions {
     }
 
     /// Conditions of `rec` in `year` with `change_c` °C added to its temperature. The source
-    /// water's conditions (three more constant sets) are worked out only for the rule that
+    /// water's conditions (one more constant set) are worked out only for the rule that
     /// uses them, [`Disequilibrium::SourceOffsets`].
     pub fn with_change(
         rec: &ProjectionRecord,
@@ -352,26 +388,47 @@ impl YearConditions {
         let xco2 = pathway
             .xco2_ppm(observed, year)
             .map_err(OutlookError::Pathway)?;
+        Ok(YearConditions::at(
+            rec,
+            xco2,
+            change_c,
+            methods,
+            year,
+            mode,
+            &mut |c: &Conditions| Constants::new(c, methods),
+        ))
+    }
+
+    /// Conditions of `rec` in `year`, whose atmosphere holds `xco2_ppm`, with `change_c` °C
+    /// added to its temperature. `source_constants` gives the source water's constants at
+    /// given conditions (many records share a source water: a cache may answer).
+    pub fn at(
+        rec: &ProjectionRecord,
+        xco2_ppm: f64,
+        change_c: f64,
+        methods: &MethodSet,
+        year: i32,
+        mode: Disequilibrium,
+        source_constants: &mut dyn FnMut(&Conditions) -> Constants,
+    ) -> YearConditions {
         let temp_c = rec.temp_c + change_c;
         let constants = Constants::new(&rec.conditions_at(temp_c), methods);
         let needs_source = mode == Disequilibrium::SourceOffsets;
         let source = rec.source.as_ref().filter(|_| needs_source).map(|sw| {
             let t = sw.temp_c + change_c;
             SourceYear {
-                air: pco2_air_uatm(xco2, t, sw.salinity),
-                k_year: Constants::new(&sw.conditions_at(t), methods),
-                k_sample: Constants::new(&sw.conditions_at(sw.temp_c), methods),
-                k_reef_sample: Constants::new(&rec.conditions_at(rec.temp_c), methods),
+                air: pco2_air_uatm(xco2_ppm, t, sw.salinity),
+                k_year: source_constants(&sw.conditions_at(t)),
             }
         });
-        Ok(YearConditions {
+        YearConditions {
             year,
-            xco2_ppm: xco2,
+            xco2_ppm,
             temp_c,
-            pco2_air: pco2_air_uatm(xco2, temp_c, rec.salinity),
+            pco2_air: pco2_air_uatm(xco2_ppm, temp_c, rec.salinity),
             constants,
             source,
-        })
+        }
     }
 }
 
@@ -428,6 +485,9 @@ pub struct Start {
     pub pco2: f64,
     /// Source water (TA, pCO2) at sampling.
     pub source: Option<(f64, f64)>,
+    /// The offsets from the source water, worked out once for every year by
+    /// [`Start::holding_offsets`] (`None`: [`project_state`] works them out each time).
+    pub held: Option<HeldOffsets>,
 }
 
 impl Start {
@@ -437,8 +497,45 @@ impl Start {
             ta: rec.ta,
             pco2: rec.pco2,
             source: rec.source.as_ref().map(|s| (s.ta, s.pco2)),
+            held: None,
         }
     }
+
+    /// This start with its source-water offsets worked out once, for projecting it to many
+    /// years under `mode` with the same `pt` (the sampling-time states do not depend on the
+    /// year). Unchanged under the other rules, or when the offsets cannot be worked out (each
+    /// year's [`project_state`] then gives the reason).
+    pub fn holding_offsets(
+        self,
+        rec: &ProjectionRecord,
+        anchor: &RecordAnchor,
+        mode: Disequilibrium,
+        pt: Option<&Perturbation>,
+    ) -> Start {
+        if mode != Disequilibrium::SourceOffsets {
+            return self;
+        }
+        let held = held_start(rec, anchor, &self)
+            .and_then(|(sw, sa, hs)| HeldOffsets::new(&hs, sw, sa, pt).ok());
+        Start { held, ..self }
+    }
+}
+
+/// The reef and source-water values a source-offsets projection of `start` needs.
+fn held_start<'a>(
+    rec: &'a ProjectionRecord,
+    anchor: &'a RecordAnchor,
+    start: &Start,
+) -> Option<(&'a SourceWater, &'a SourceAnchor, HeldStart)> {
+    let (sw, sa, (source_ta, source_pco2)) =
+        (rec.source.as_ref()?, anchor.source.as_ref()?, start.source?);
+    let held = HeldStart {
+        reef_ta: start.ta,
+        reef_pco2: start.pco2,
+        source_ta,
+        source_pco2,
+    };
+    Some((sw, sa, held))
 }
 
 /// The state of one record in the year of `yc` under `mode`: the one per-record projection
@@ -461,22 +558,17 @@ pub fn project_state(
             solve_projected(start.ta, pco2, offsets, &k)
         }
         Disequilibrium::SourceOffsets => {
-            let (Some(sw), Some(sa), Some(sy), Some((source_ta, source_pco2))) = (
-                rec.source.as_ref(),
-                anchor.source.as_ref(),
-                yc.source.as_ref(),
-                start.source,
-            ) else {
+            let (Some((sw, sa, hs)), Some(sy)) =
+                (held_start(rec, anchor, start), yc.source.as_ref())
+            else {
                 return Err(
                     "the source-offsets rule needs the record's offshore source water, and the site has none"
                         .to_string(),
                 );
             };
-            let held = HeldStart {
-                reef_ta: start.ta,
-                reef_pco2: start.pco2,
-                source_ta,
-                source_pco2,
+            let held = match start.held {
+                Some(h) => h,
+                None => HeldOffsets::new(&hs, sw, sa, pt)?,
             };
             offsets_held_state(&held, sw, sa, sy, &yc.constants, pt, offsets)
         }
@@ -497,7 +589,7 @@ pub fn project_record(
     year: i32,
 ) -> Result<ProjectedPoint, OutlookError> {
     rec.validate()?;
-    let anchor = RecordAnchor::new(rec, pathway, observed)?;
+    let anchor = RecordAnchor::new(rec, pathway, observed, methods)?;
     let yc = YearConditions::new(rec, pathway, observed, warming, methods, year, mode)?;
     let state = project_state(rec, &anchor, &Start::central(rec), &yc, None, mode, offsets)
         .map_err(|message| OutlookError::Solve {

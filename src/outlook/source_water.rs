@@ -146,15 +146,20 @@ impl SourceWater {
     }
 }
 
-/// The source water's air pCO2 values a record's projection needs under one pathway, µatm
-/// (at the source's temperature and salinity).
-#[derive(Clone, Copy, Debug, PartialEq)]
+/// What a record's projection under one pathway needs of its source water, worked out once
+/// per record: the air pCO2 values (µatm, at the source's temperature and salinity) and the
+/// central constants at the two sampling states.
+#[derive(Clone, Debug, PartialEq)]
 pub struct SourceAnchor {
     /// Air in the source's own sampling year.
     pub air_own_sample: f64,
     /// Air in the reef record's sampling year (the source's state at the reef's sampling
     /// time is the source followed to that year).
     pub air_reef_sample: f64,
+    /// Constants of the source water at its sampling conditions.
+    pub k_sample: Constants,
+    /// Constants of the reef record at its sampling conditions.
+    pub k_reef_sample: Constants,
 }
 
 /// The source water's conditions in one horizon year (central constants).
@@ -164,10 +169,6 @@ pub struct SourceYear {
     pub air: f64,
     /// Constants of the source water in that year.
     pub k_year: Constants,
-    /// Constants of the source water at sampling.
-    pub k_sample: Constants,
-    /// Constants of the reef record at its sampling conditions.
-    pub k_reef_sample: Constants,
 }
 
 /// A reef record's TA and pCO2 at sampling and its source water's, central or with one
@@ -180,13 +181,78 @@ pub struct HeldStart {
     pub source_pco2: f64,
 }
 
+/// The offsets a reef record holds from its source water, and the source water they are
+/// held against: the same in every year, so worked out once per record (and member).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct HeldOffsets {
+    /// Source-water TA at sampling, µmol/kg.
+    pub source_ta: f64,
+    /// Source-water pCO2 at its own sampling, µatm.
+    pub source_pco2: f64,
+    /// `TA_reef − TA_source` at the reef's sampling time, µmol/kg.
+    pub d_ta: f64,
+    /// `DIC_reef − DIC_source` at the reef's sampling time, µmol/kg.
+    pub d_dic: f64,
+}
+
+impl HeldOffsets {
+    /// The offsets of `start` from its source water at the reef's sampling time: the source
+    /// water followed to the reef's sampling year and the reef water, each solved from its
+    /// TA and pCO2 with its sampling constants (shifted by `pt`, a member's draw).
+    pub fn new(
+        start: &HeldStart,
+        sw: &SourceWater,
+        anchor: &SourceAnchor,
+        pt: Option<&Perturbation>,
+    ) -> Result<HeldOffsets, String> {
+        let p_base = sw.follows.apply(
+            start.source_pco2,
+            anchor.air_own_sample,
+            anchor.air_reef_sample,
+        );
+        let source_then = solve_pco2(
+            start.source_ta,
+            p_base,
+            &anchor.k_sample,
+            pt,
+            "source water at sampling",
+        )?;
+        let reef_then = solve_pco2(
+            start.reef_ta,
+            start.reef_pco2,
+            &anchor.k_reef_sample,
+            pt,
+            "reef water at sampling",
+        )?;
+        Ok(HeldOffsets {
+            source_ta: start.source_ta,
+            source_pco2: start.source_pco2,
+            d_ta: start.reef_ta - start.source_ta,
+            d_dic: reef_then.dic - source_then.dic,
+        })
+    }
+}
+
+/// The state of TA and pCO2 with constants `k` shifted by `pt`; an error names `what`.
+fn solve_pco2(
+    ta: f64,
+    pco2: f64,
+    k: &Constants,
+    pt: Option<&Perturbation>,
+    what: &str,
+) -> Result<CarbonateState, String> {
+    let k = pt.map_or(*k, |p| k.perturbed(p));
+    chem::solve_pair(Input::Ta(ta), Input::Pco2(pco2), &k).map_err(|e| format!("{what}: {e}"))
+}
+
 /// The reef record's state in a year with its offsets from the source water held.
 /// `k_reef_year`: the record's constants in that year; `pt`: a member's shift of the
-/// constants, applied to every constant used (reef and source, at sampling and in the year).
+/// constants, applied to every constant used (reef and source, at sampling and in the year:
+/// `held` must come from the same `pt`).
 /// A local scenario's TA offset is added to the source water at its projected pCO2 (as the
 /// other rules add it at the record's projected pCO2), its DIC offset to the reef DIC.
 pub fn offsets_held_state(
-    start: &HeldStart,
+    held: &HeldOffsets,
     sw: &SourceWater,
     anchor: &SourceAnchor,
     year: &SourceYear,
@@ -194,49 +260,28 @@ pub fn offsets_held_state(
     pt: Option<&Perturbation>,
     offsets: Option<&Offsets>,
 ) -> Result<CarbonateState, String> {
-    let k = |c: &Constants| pt.map_or(*c, |p| c.perturbed(p));
-    let p_base = sw.follows.apply(
-        start.source_pco2,
-        anchor.air_own_sample,
-        anchor.air_reef_sample,
-    );
     let p_year = sw
         .follows
-        .apply(start.source_pco2, anchor.air_own_sample, year.air);
+        .apply(held.source_pco2, anchor.air_own_sample, year.air);
     if !p_year.is_finite() || p_year < super::projection::MIN_PROJECTED_PCO2_UATM {
         return Err(format!(
             "projected source-water pCO2 {p_year:.1} uatm is below {} uatm (use the ratio rule for the source water)",
             super::projection::MIN_PROJECTED_PCO2_UATM
         ));
     }
-    let solve = |ta: f64, p: f64, c: &Constants, what: &str| {
-        chem::solve_pair(Input::Ta(ta), Input::Pco2(p), &k(c)).map_err(|e| format!("{what}: {e}"))
-    };
-    let source_then = solve(
-        start.source_ta,
-        p_base,
-        &year.k_sample,
-        "source water at sampling",
-    )?;
-    let reef_then = solve(
-        start.reef_ta,
-        start.reef_pco2,
-        &year.k_reef_sample,
-        "reef water at sampling",
-    )?;
-    let d_ta = start.reef_ta - start.source_ta;
-    let d_dic = reef_then.dic - source_then.dic;
     let (off_ta, off_dic) = offsets.map_or((0.0, 0.0), |o| (o.ta_umol_kg, o.dic_umol_kg));
-    let source_now = solve(
-        start.source_ta + off_ta,
+    let source_now = solve_pco2(
+        held.source_ta + off_ta,
         p_year,
         &year.k_year,
+        pt,
         "source water in the year",
     )?;
+    let k = pt.map_or(*k_reef_year, |p| k_reef_year.perturbed(p));
     chem::solve_pair(
-        Input::Ta(source_now.ta + d_ta),
-        Input::Dic(source_now.dic + d_dic + off_dic),
-        &k(k_reef_year),
+        Input::Ta(source_now.ta + held.d_ta),
+        Input::Dic(source_now.dic + held.d_dic + off_dic),
+        &k,
     )
     .map_err(|e| format!("reef water with its offsets held: {e}"))
 }

@@ -222,7 +222,8 @@ fn constants_through_the_representative_match_direct_solves() {
             site.records
                 .iter()
                 .map(|r| {
-                    let a = RecordAnchor::new(r, &spec.pathway, &site.observed).unwrap();
+                    let a =
+                        RecordAnchor::new(r, &spec.pathway, &site.observed, &site.methods).unwrap();
                     let yc = YearConditions::new(
                         r,
                         &spec.pathway,

@@ -36,12 +36,14 @@
 //! scenarios, anchors, computed years and the notes found before running), [`run`] (the
 //! members and their summary per task), [`assemble`] (the typed [`super::Outlook`]: series,
 //! crossing years, chances and shares below), [`quantiles`] (order statistics), `exposure`
-//! (the exposure metrics of sensor series, from the records each projected on its own).
+//! (the exposure metrics of sensor series, from the records each projected on its own),
+//! `means` (the bootstrap-weighted means, every member's inner loop).
 
 pub mod assemble;
 pub mod central;
 pub mod draws;
 mod exposure;
+mod means;
 pub mod prepare;
 pub mod quantiles;
 pub mod rules;

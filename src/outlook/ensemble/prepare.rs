@@ -4,7 +4,11 @@
 
 use std::collections::BTreeSet;
 
-use super::super::projection::RecordAnchor;
+use rayon::prelude::*;
+
+use crate::chem::inside_fitted_ranges;
+
+use super::super::projection::{RecordAnchor, SamplingConstants};
 use super::super::result::{GroupId, Note, RelationshipId};
 use super::super::scenario::Offsets;
 use super::super::{OutlookError, ProjectionSettings, SiteInput};
@@ -97,6 +101,12 @@ impl<'a> Prepared<'a> {
         let variants = variants(site, s)?;
         // Pathway values at every horizon year and anchors at every sampling year.
         let mut anchors = Vec::with_capacity(s.pathways.len());
+        // The source water's sampling constants are the same under every pathway.
+        let sampling: Vec<Option<SamplingConstants>> = site
+            .records
+            .par_iter()
+            .map(|r| SamplingConstants::of(r, &site.methods))
+            .collect();
         let mut xco2 = Vec::with_capacity(s.pathways.len());
         for p in &s.pathways {
             let xs = s
@@ -107,8 +117,12 @@ impl<'a> Prepared<'a> {
             xco2.push(xs);
             anchors.push(
                 site.records
-                    .iter()
-                    .map(|r| RecordAnchor::new(r, &p.pathway, &site.observed))
+                    .par_iter()
+                    .zip(&sampling)
+                    .map(|(r, k)| RecordAnchor::with_constants(r, &p.pathway, &site.observed, k))
+                    .collect::<Vec<_>>()
+                    // The first record's error in file order, whatever the thread timing.
+                    .into_iter()
                     .collect::<Result<Vec<_>, _>>()?,
             );
         }
@@ -338,6 +352,7 @@ fn range_survey(site: &SiteInput, s: &ProjectionSettings) -> Option<Note> {
     let mut total = 0usize;
     let mut outside = 0usize;
     let mut examples: BTreeSet<String> = BTreeSet::new();
+    let ranges = site.methods.fitted_ranges();
     let specs: Vec<_> = if s.warming {
         s.pathways.iter().collect()
     } else {
@@ -355,6 +370,9 @@ fn range_survey(site: &SiteInput, s: &ProjectionSettings) -> Option<Note> {
                     None => rec.temp_c,
                 };
                 total += 1;
+                if inside_fitted_ranges(&ranges, temp, rec.salinity) {
+                    continue;
+                }
                 let w = site.methods.range_warnings(&rec.conditions_at(temp));
                 if let Some(first) = w.first() {
                     outside += 1;

@@ -6,19 +6,15 @@
 
 use super::super::projection::Disequilibrium;
 use super::super::result::{PathwayId, RuleComparison};
-use super::central::{Central, OMEGA_AR, project_at};
+use super::central::{Central, OMEGA_AR};
 use super::prepare::{Group, Prepared};
 
-/// The group's time-weighted mean Omega_ar at computed year `k` (base case), over the
-/// records that could be solved (weights renormalised); NaN when none could.
-fn group_mean(g: &Group, central: &Central, k: usize) -> f64 {
+/// The group's time-weighted mean of `omega(record)` over the records that could be solved
+/// (weights renormalised); NaN when none could.
+fn group_mean(g: &Group, omega: impl Fn(usize) -> Option<f64>) -> f64 {
     let (mut sum, mut w_all) = (0.0, 0.0);
     for (&r, &w) in g.records.iter().zip(&g.weights) {
-        if let Some(x) = central
-            .get(0, r, k)
-            .map(|v| v[OMEGA_AR])
-            .filter(|x| x.is_finite())
-        {
+        if let Some(x) = omega(r).filter(|x| x.is_finite()) {
             sum += w * x;
             w_all += w;
         }
@@ -26,23 +22,29 @@ fn group_mean(g: &Group, central: &Central, k: usize) -> f64 {
     if w_all > 0.0 { sum / w_all } else { f64::NAN }
 }
 
+/// The rules other than the settings' own, projected beside it by
+/// [`super::central::project_all`] at the horizon years (base case).
+pub(super) fn other_rules(mode: Disequilibrium) -> Vec<Disequilibrium> {
+    Disequilibrium::ALL
+        .into_iter()
+        .filter(|m| *m != mode)
+        .collect()
+}
+
 /// Every pathway, group and horizon year under the three rules (`centrals`: the run's own
-/// central projections by the settings' rule, reused).
+/// central projections, which carry the other rules at the horizon years).
 pub(super) fn compare_rules(prep: &Prepared<'_>, centrals: &[Central]) -> Vec<RuleComparison> {
     let s = prep.s;
     let mut out = Vec::new();
-    for (p, own) in centrals.iter().enumerate().take(s.pathways.len()) {
-        // The other two rules are needed at the horizon years and for the base case only.
-        let others: Vec<(Disequilibrium, Central)> = Disequilibrium::ALL
-            .into_iter()
-            .filter(|m| *m != s.mode)
-            .map(|m| (m, project_at(prep, p, m, &s.years, 1)))
-            .collect();
+    for (p, c) in centrals.iter().enumerate().take(s.pathways.len()) {
         for g in &prep.groups {
             for (h, (&year, &k)) in s.years.iter().zip(&prep.horizon_knot).enumerate() {
-                let mean = |m: Disequilibrium| match others.iter().find(|(x, _)| *x == m) {
-                    Some((_, c)) => group_mean(g, c, h),
-                    None => group_mean(g, own, k),
+                let mean = |m: Disequilibrium| {
+                    if m == s.mode {
+                        group_mean(g, |r| c.get(0, r, k).map(|v| v[OMEGA_AR]))
+                    } else {
+                        group_mean(g, |r| c.rule_omega(m, r, h))
+                    }
                 };
                 out.push(RuleComparison {
                     pathway: PathwayId(p),

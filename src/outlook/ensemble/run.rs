@@ -16,6 +16,7 @@ use super::super::{OutlookError, ProjectionSettings, SiteInput};
 use super::assemble::assemble;
 use super::central::{Central, NQ, OMEGA_AR, TEMP, Values, project_all, values_of};
 use super::draws::{MemberDraw, constants_perturbation, member_source_start, member_start};
+use super::means::{StationDays, weighted_mean};
 use super::prepare::{Group, Prepared};
 use super::quantiles::five_quantiles;
 use super::settings::{Progress, input_err};
@@ -91,8 +92,8 @@ fn shared_draw(prep: &Prepared<'_>, m: usize) -> Shared {
 /// The group's tables for one pathway: station-day means of the central projections and
 /// the representative record's central state and temperature sensitivity.
 struct GroupTables {
-    /// `[variant][unit * knots + k]`
-    unit_at: Vec<Vec<Values>>,
+    /// `[variant]`: station-day values at every computed year.
+    unit_at: Vec<StationDays>,
     /// `[unit]`
     unit_present: Vec<Values>,
     /// Representative record: central conditions per knot (`None`: not solvable).
@@ -105,26 +106,6 @@ struct GroupTables {
     rep_k_sample: Constants,
     /// Central constants of its source water at sampling (`None`: no source water).
     rep_k_source: Option<Constants>,
-}
-
-/// Mean of `vals` over units with multiplicities `counts`, quantity by quantity over the
-/// finite values.
-fn weighted_mean<'v>(counts: &[u32], vals: impl Fn(usize) -> Option<&'v Values>) -> Values {
-    let mut sum = [0.0; NQ];
-    let mut n = [0.0; NQ];
-    for (u, &c) in counts.iter().enumerate() {
-        if c == 0 {
-            continue;
-        }
-        let Some(v) = vals(u) else { continue };
-        for i in 0..NQ {
-            if v[i].is_finite() {
-                sum[i] += f64::from(c) * v[i];
-                n[i] += f64::from(c);
-            }
-        }
-    }
-    std::array::from_fn(|i| if n[i] > 0.0 { sum[i] / n[i] } else { f64::NAN })
 }
 
 impl Prepared<'_> {
@@ -147,7 +128,7 @@ impl Prepared<'_> {
                         out.push(unit_mean(unit, &|r| central.get(v, r, k).copied()));
                     }
                 }
-                out
+                StationDays::new(out, nk)
             })
             .collect();
         let unit_present = g
@@ -273,7 +254,13 @@ impl Prepared<'_> {
             )?),
             _ => None,
         };
-        let start = Start { ta, pco2, source };
+        let start = Start {
+            ta,
+            pco2,
+            source,
+            held: None,
+        }
+        .holding_offsets(rep, anchor, s.mode, shared.perturbation.as_ref());
         let k_sample = match &shared.perturbation {
             Some(pt) => t.rep_k_sample.perturbed(pt),
             None => t.rep_k_sample,
@@ -365,6 +352,7 @@ fn run_task(
         };
     };
     let mut counts = Vec::new();
+    let (mut sums, mut means) = (Vec::with_capacity(nk), Vec::with_capacity(nk));
     for m in 0..members {
         let mut rng = Xoshiro256::for_stream(&[s.ensemble.seed, g.key, m as u64]);
         if s.ensemble.members == 0 {
@@ -402,10 +390,12 @@ fn run_task(
         for (v, out) in vals.iter_mut().enumerate() {
             out.present
                 .push(std::array::from_fn(|i| now[i] + corr_now[i]));
+            match t.unit_at.get(v) {
+                Some(days) => days.means(&counts, &mut sums, &mut means),
+                None => means.clear(),
+            }
             for k in 0..nk {
-                let mean = weighted_mean(&counts, |u| {
-                    t.unit_at.get(v).and_then(|a| a.get(u * nk + k))
-                });
+                let mean = means.get(k).unwrap_or(&nan);
                 let c = corr.get(v).and_then(|c| c.get(k)).unwrap_or(&nan);
                 out.at.push(std::array::from_fn(|i| mean[i] + c[i]));
             }
@@ -662,9 +652,15 @@ pub fn run(
         (s.pathways.len() * prep.groups.len()) as u64 * s.ensemble.members.max(1) as u64 * nk;
     progress.start(total);
     let has_source = site.records.iter().any(|r| r.source.is_some());
+    // At a site with source water the other rules are projected beside the run's own.
+    let compared = if has_source {
+        super::rules::other_rules(s.mode)
+    } else {
+        Vec::new()
+    };
     let work = || -> (Vec<Central>, Vec<TaskOut>, Vec<RuleComparison>) {
         let centrals: Vec<Central> = (0..s.pathways.len())
-            .map(|p| project_all(&prep, p, s.mode))
+            .map(|p| project_all(&prep, p, s.mode, &compared))
             .collect();
         // Task order (pathway-major, then group) is the order of `outs`.
         let tasks: Vec<(usize, &Group)> = (0..s.pathways.len())
