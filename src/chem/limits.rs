@@ -24,15 +24,63 @@ pub const LIMITS: &[(&str, f64, f64, &str)] = &[
 /// has no carbonate-system solution).
 const STRICTLY_POSITIVE: &[&str] = &["ta", "dic", "pco2", "fco2", "co3"];
 
+/// The limit of one column, looked up once by a caller that checks many values of it.
+#[derive(Clone, Copy, Debug)]
+pub struct Limit {
+    column: &'static str,
+    lo: f64,
+    hi: f64,
+    unit: &'static str,
+    positive: bool,
+}
+
+impl Limit {
+    /// The limit of `column`, if it has one.
+    pub fn of(column: &str) -> Option<Limit> {
+        let &(column, lo, hi, unit) = LIMITS.iter().find(|(c, ..)| *c == column)?;
+        Some(Limit {
+            column,
+            lo,
+            hi,
+            unit,
+            positive: STRICTLY_POSITIVE.contains(&column),
+        })
+    }
+
+    /// [`check`] of a value of this limit's column.
+    pub fn check(&self, value: f64) -> Result<(), String> {
+        let below = if self.positive {
+            value <= self.lo
+        } else {
+            value < self.lo
+        };
+        if value.is_finite() && !below && value <= self.hi {
+            return Ok(());
+        }
+        check_against(self.column, value, Some(self))
+    }
+}
+
 /// Check one value; `Err` names the column, the value and the valid range.
 pub fn check(column: &str, value: f64) -> Result<(), String> {
+    check_against(column, value, Limit::of(column).as_ref())
+}
+
+/// [`check`] of `value` in `column` against its limit `limit` (`None`: the column has none).
+fn check_against(column: &str, value: f64, limit: Option<&Limit>) -> Result<(), String> {
     if !value.is_finite() {
         return Err(format!("{column}: value {value} is not a finite number"));
     }
-    let Some(&(_, lo, hi, unit)) = LIMITS.iter().find(|(c, ..)| *c == column) else {
+    let Some(&Limit {
+        lo,
+        hi,
+        unit,
+        positive,
+        ..
+    }) = limit
+    else {
         return Ok(());
     };
-    let positive = STRICTLY_POSITIVE.contains(&column);
     let below = if positive { value <= lo } else { value < lo };
     if below || value > hi {
         let unit = if unit.is_empty() {
@@ -69,5 +117,25 @@ mod tests {
         assert!(check("silicate", 0.0).is_ok());
         assert!(check("ph_t", f64::NAN).unwrap_err().contains("finite"));
         assert!(check("unknown_column", 1e9).is_ok());
+    }
+
+    /// A limit looked up once answers as `check` does, at and around its ends.
+    #[test]
+    fn limit_looked_up_once_agrees_with_check() {
+        for &(column, lo, hi, _) in LIMITS {
+            let limit = Limit::of(column).unwrap();
+            for v in [
+                lo - 1.0,
+                lo,
+                lo + 1e-9,
+                0.5 * (lo + hi),
+                hi,
+                hi + 1e-9,
+                f64::NAN,
+            ] {
+                assert_eq!(limit.check(v), check(column, v), "{column} {v}");
+            }
+        }
+        assert!(Limit::of("unknown_column").is_none());
     }
 }

@@ -230,7 +230,11 @@ pub fn solve_pair(a: Input, b: Input, k: &Constants) -> Result<CarbonateState, C
     for (i, input) in [a, b].into_iter().enumerate() {
         let col = input.column();
         let v = input.value();
-        limits::check(col, v).map_err(ChemError::OutOfRange)?;
+        match input_limit(&input) {
+            Some(l) => l.check(v),
+            None => limits::check(col, v),
+        }
+        .map_err(ChemError::OutOfRange)?;
         let slot_name = match input {
             Input::Pco2(_) | Input::Fco2(_) => "co2",
             _ => col,
@@ -286,6 +290,31 @@ pub fn solve_pair(a: Input, b: Input, k: &Constants) -> Result<CarbonateState, C
         return Err(ChemError::NoSolution("the solution is not finite".into()));
     }
     Ok(state)
+}
+
+/// The physical limit of an input's column, looked up once for each kind of input.
+fn input_limit(input: &Input) -> Option<&'static limits::Limit> {
+    static TABLE: std::sync::LazyLock<[Option<limits::Limit>; 6]> =
+        std::sync::LazyLock::new(|| {
+            [
+                Input::Ta(0.0),
+                Input::Dic(0.0),
+                Input::PhT(0.0),
+                Input::Pco2(0.0),
+                Input::Fco2(0.0),
+                Input::Co3(0.0),
+            ]
+            .map(|i| limits::Limit::of(i.column()))
+        });
+    let slot = match input {
+        Input::Ta(_) => 0,
+        Input::Dic(_) => 1,
+        Input::PhT(_) => 2,
+        Input::Pco2(_) => 3,
+        Input::Fco2(_) => 4,
+        Input::Co3(_) => 5,
+    };
+    TABLE.get(slot)?.as_ref()
 }
 
 /// Accepted pH_T range of a solution: the same as the input limit for pH_T.

@@ -19,7 +19,7 @@ use crate::chem::catalogue::MethodKind;
 use crate::chem::measured::{self, MeasuredError, MeasuredParams, Options, Pair, Param};
 use crate::chem::scales::{self, PhScale};
 use crate::chem::{
-    BoronTotal, CarbonateState, Conditions, Constants, K1K2, KfSource, MethodSet, limits,
+    self, BoronTotal, CarbonateState, Conditions, Constants, K1K2, KfSource, MethodSet, limits,
 };
 use crate::{fsio, numfmt};
 
@@ -89,7 +89,7 @@ pub struct SolveArgs {
 }
 
 /// Where each recognised column sits in the header.
-#[derive(Default, Debug)]
+#[derive(Debug)]
 struct Layout {
     temp_c: Option<usize>,
     salinity: Option<usize>,
@@ -106,6 +106,35 @@ struct Layout {
     /// For each input column: the output column it receives in place, if any.
     in_place: Vec<Option<usize>>,
     input_width: usize,
+    /// The physical limits of the condition columns, looked up once.
+    limits: ConditionLimits,
+}
+
+/// The limits of the condition columns ([`limits::LIMITS`] has a row for each).
+#[derive(Debug)]
+struct ConditionLimits {
+    temp_c: limits::Limit,
+    salinity: limits::Limit,
+    pressure_dbar: limits::Limit,
+    depth_m: limits::Limit,
+    silicate: limits::Limit,
+    phosphate: limits::Limit,
+}
+
+impl ConditionLimits {
+    fn new() -> Result<ConditionLimits, String> {
+        let of = |c: &str| {
+            limits::Limit::of(c).ok_or_else(|| format!("internal: no physical limit for {c}"))
+        };
+        Ok(ConditionLimits {
+            temp_c: of("temp_c")?,
+            salinity: of("salinity")?,
+            pressure_dbar: of("pressure_dbar")?,
+            depth_m: of("depth_m")?,
+            silicate: of("silicate")?,
+            phosphate: of("phosphate")?,
+        })
+    }
 }
 
 impl Layout {
@@ -154,6 +183,7 @@ impl Layout {
                 .map(|i| OUTPUT_COLUMNS.iter().position(|c| find(c) == Some(i)))
                 .collect(),
             input_width: header.len(),
+            limits: ConditionLimits::new()?,
         })
     }
 
@@ -263,14 +293,20 @@ fn conditions(rec: &Row<'_>, layout: &Layout) -> Result<Conditions, String> {
     };
     let silicate = parse(layout.silicate, "silicate")?.unwrap_or(0.0);
     let phosphate = parse(layout.phosphate, "phosphate")?.unwrap_or(0.0);
-    for (col, v) in [
-        ("temp_c", temp_c),
-        ("salinity", salinity),
-        (pressure.0, pressure.1),
-        ("silicate", silicate),
-        ("phosphate", phosphate),
+    let l = &layout.limits;
+    let pressure_limit = if pressure.0 == "depth_m" {
+        &l.depth_m
+    } else {
+        &l.pressure_dbar
+    };
+    for (limit, v) in [
+        (&l.temp_c, temp_c),
+        (&l.salinity, salinity),
+        (pressure_limit, pressure.1),
+        (&l.silicate, silicate),
+        (&l.phosphate, phosphate),
     ] {
-        limits::check(col, v)?;
+        limit.check(v)?;
     }
     Ok(Conditions {
         temp_c,
@@ -338,8 +374,11 @@ fn solve_row(rec: &Row<'_>, layout: &Layout, methods: &MethodSet) -> RowResult {
         Err(e @ MeasuredError::NoPair { .. }) => return fail(notes, e.to_string()),
         Err(MeasuredError::Solve { error, .. }) => return fail(notes, error.to_string()),
     };
-    for w in methods.range_warnings(&cond) {
-        notes.push(format!("warning: {w}"));
+    // Most rows lie inside every fitted range: answered without building the messages.
+    if !chem::inside_fitted_ranges(&methods.fitted_ranges(), cond.temp_c, cond.salinity) {
+        for w in methods.range_warnings(&cond) {
+            notes.push(format!("warning: {w}"));
+        }
     }
     for m in sol.inconsistent() {
         notes.push(misfit_note(m, sol.pair));
