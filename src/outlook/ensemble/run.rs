@@ -198,10 +198,8 @@ impl Prepared<'_> {
             rep_per_degree,
             rep_warming: self.knots.iter().map(|&y| change(y)).collect(),
             rep_k_sample: Constants::new(&rep.conditions_at(rep.temp_c), &site.methods),
-            rep_k_source: rep
-                .source
-                .as_ref()
-                .map(|sw| Constants::new(&sw.conditions_at(sw.temp_c), &site.methods)),
+            // Worked out once per record already, with its anchor.
+            rep_k_source: anchor.source.as_ref().map(|a| a.k_sample),
         })
     }
 
