@@ -287,7 +287,7 @@ impl MethodSet {
     /// Each fitted constant of this set: (constant, citation, (temperature °C, salinity)
     /// fitted ranges). Mucci (1983) is fitted 5–40 °C, S 5–44; the KSO4/KB/KW fits cover
     /// 0–45 °C, S 5–45.
-    pub fn fitted_ranges(&self) -> [(&'static str, &'static str, FittedRange); 4] {
+    fn fitted_ranges(&self) -> [(&'static str, &'static str, FittedRange); 4] {
         use catalogue::MethodKind as K;
         [
             (
@@ -329,24 +329,21 @@ impl MethodSet {
         }
         out
     }
+
+    /// Whether [`MethodSet::range_warnings`] would give no warning at `c`: the same test,
+    /// without building the messages (most samples lie inside every range).
+    pub fn in_fitted_ranges(&self, c: &Conditions) -> bool {
+        self.fitted_ranges()
+            .iter()
+            .all(|(_, _, ((t0, t1), (s0, s1)))| {
+                !(c.temp_c < *t0 || c.temp_c > *t1 || c.salinity < *s0 || c.salinity > *s1)
+            })
+    }
 }
 
 /// A constant's fitted ranges: ((lowest, highest) temperature °C, (lowest, highest)
 /// salinity).
-pub type FittedRange = ((f64, f64), (f64, f64));
-
-/// Whether [`MethodSet::range_warnings`] would give no warning at (`temp_c`, `salinity`)
-/// for the ranges `ranges` of [`MethodSet::fitted_ranges`] (worked out once by a caller
-/// that checks many conditions).
-pub fn inside_fitted_ranges(
-    ranges: &[(&'static str, &'static str, FittedRange)],
-    temp_c: f64,
-    salinity: f64,
-) -> bool {
-    ranges.iter().all(|(_, _, ((t0, t1), (s0, s1)))| {
-        !(temp_c < *t0 || temp_c > *t1 || salinity < *s0 || salinity > *s1)
-    })
-}
+type FittedRange = ((f64, f64), (f64, f64));
 
 /// Every constant needed to solve the system at one (T, S, P). Acid constants are on the
 /// total pH scale except `ks` and `kf` (free scale); all are mol/kg-SW. Totals are mol/kg.
@@ -592,4 +589,57 @@ pub fn solve(
         limits::check(col, v).map_err(ChemError::OutOfRange)?;
     }
     solve_pair(a, b, &Constants::new(cond, m))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The quick test and the messages agree for every constant set, across and beyond the
+    /// fitted ranges (edges, just outside them, and NaN, which no comparison flags).
+    #[test]
+    fn in_fitted_ranges_agrees_with_range_warnings() {
+        for &(_, k1k2) in K1K2::ALL {
+            for &(_, boron) in BoronTotal::ALL {
+                for &(_, kf) in KfSource::ALL {
+                    let m = MethodSet { k1k2, boron, kf };
+                    for t in [
+                        -2.0,
+                        0.0,
+                        2.0,
+                        4.999,
+                        5.0,
+                        25.0,
+                        33.0,
+                        33.01,
+                        40.0,
+                        40.01,
+                        45.0,
+                        f64::NAN,
+                    ] {
+                        for s in [
+                            0.0,
+                            4.99,
+                            5.0,
+                            19.99,
+                            20.0,
+                            35.0,
+                            43.0,
+                            44.0,
+                            44.01,
+                            50.0,
+                            f64::NAN,
+                        ] {
+                            let c = Conditions::surface(t, s);
+                            assert_eq!(
+                                m.in_fitted_ranges(&c),
+                                m.range_warnings(&c).is_empty(),
+                                "{m:?} {t} {s}"
+                            );
+                        }
+                    }
+                }
+            }
+        }
+    }
 }

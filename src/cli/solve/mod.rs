@@ -19,7 +19,7 @@ use crate::chem::catalogue::MethodKind;
 use crate::chem::measured::{self, MeasuredError, MeasuredParams, Options, Pair, Param};
 use crate::chem::scales::{self, PhScale};
 use crate::chem::{
-    self, BoronTotal, CarbonateState, Conditions, Constants, K1K2, KfSource, MethodSet, limits,
+    BoronTotal, CarbonateState, Conditions, Constants, K1K2, KfSource, MethodSet, limits,
 };
 use crate::{fsio, numfmt};
 
@@ -374,8 +374,7 @@ fn solve_row(rec: &Row<'_>, layout: &Layout, methods: &MethodSet) -> RowResult {
         Err(e @ MeasuredError::NoPair { .. }) => return fail(notes, e.to_string()),
         Err(MeasuredError::Solve { error, .. }) => return fail(notes, error.to_string()),
     };
-    // Most rows lie inside every fitted range: answered without building the messages.
-    if !chem::inside_fitted_ranges(&methods.fitted_ranges(), cond.temp_c, cond.salinity) {
+    if !methods.in_fitted_ranges(&cond) {
         for w in methods.range_warnings(&cond) {
             notes.push(format!("warning: {w}"));
         }

@@ -6,8 +6,6 @@ use std::collections::BTreeSet;
 
 use rayon::prelude::*;
 
-use crate::chem::inside_fitted_ranges;
-
 use super::super::projection::{RecordAnchor, SamplingConstants};
 use super::super::result::{GroupId, Note, RelationshipId};
 use super::super::scenario::Offsets;
@@ -352,7 +350,6 @@ fn range_survey(site: &SiteInput, s: &ProjectionSettings) -> Option<Note> {
     let mut total = 0usize;
     let mut outside = 0usize;
     let mut examples: BTreeSet<String> = BTreeSet::new();
-    let ranges = site.methods.fitted_ranges();
     let specs: Vec<_> = if s.warming {
         s.pathways.iter().collect()
     } else {
@@ -370,10 +367,11 @@ fn range_survey(site: &SiteInput, s: &ProjectionSettings) -> Option<Note> {
                     None => rec.temp_c,
                 };
                 total += 1;
-                if inside_fitted_ranges(&ranges, temp, rec.salinity) {
+                let cond = rec.conditions_at(temp);
+                if site.methods.in_fitted_ranges(&cond) {
                     continue;
                 }
-                let w = site.methods.range_warnings(&rec.conditions_at(temp));
+                let w = site.methods.range_warnings(&cond);
                 if let Some(first) = w.first() {
                     outside += 1;
                     examples.insert(format!("{}: {first}", rec.label));
