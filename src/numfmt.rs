@@ -35,11 +35,11 @@ pub fn push_fixed(buf: &mut String, v: f64, decimals: usize) -> bool {
     if !v.is_finite() {
         return false;
     }
-    let mut digits = [b'0'; 40];
+    let mut digits = [b'0'; DIGITS];
     let fast = scale_and_round(v, decimals).and_then(|s| {
         let start = s.write_right(&mut digits);
         // Only ASCII digits, '.' and '-' were written.
-        std::str::from_utf8(digits.get(start..)?).ok()
+        std::str::from_utf8(digits.get(start..TEXT_END)?).ok()
     });
     match fast {
         Some(text) => buf.push_str(text),
@@ -56,9 +56,15 @@ pub fn push_fixed_bytes(buf: &mut Vec<u8>, v: f64, decimals: usize) -> bool {
     }
     match scale_and_round(v, decimals) {
         Some(s) => {
-            let mut digits = [b'0'; 40];
+            let mut digits = [b'0'; DIGITS];
             let start = s.write_right(&mut digits);
-            buf.extend_from_slice(digits.get(start..).unwrap_or_default());
+            // A fixed COPY bytes from the start (a few moves, where a copy of the exact
+            // length is a call), then the bytes past the text cut off again.
+            let old = buf.len();
+            if let Some(text) = digits.get(start..start + COPY) {
+                buf.extend_from_slice(text);
+            }
+            buf.truncate(old + (TEXT_END - start));
         }
         None => {
             let mut s = String::new();
@@ -138,6 +144,14 @@ fn scale_and_round(v: f64, decimals: usize) -> Option<Scaled> {
     })
 }
 
+/// Where [`Scaled::write_right`] ends its text. The longest text, a sign, 16 digits
+/// (n < 2^52 < 10^16, and at most 15 decimals plus the leading zero) and a point, is 18
+/// bytes, so a text starts at 22 or later and [`COPY`] bytes from its start stay inside
+/// [`DIGITS`].
+const TEXT_END: usize = 40;
+const COPY: usize = 24;
+const DIGITS: usize = TEXT_END + COPY;
+
 /// "00", "01", … "99": two digits per table look-up halve the divisions.
 const PAIRS: [u8; 200] = {
     let mut t = [0u8; 200];
@@ -151,11 +165,10 @@ const PAIRS: [u8; 200] = {
 };
 
 impl Scaled {
-    /// Write the text (sign, integer digits, at least one, point and decimals) at the end of
-    /// `out`, right to left, two digits per step; returns where it starts. The longest text,
-    /// a sign, 16 digits of n < 2^52 < 10^16, a point and a leading zero, fits 40 bytes.
-    fn write_right(&self, out: &mut [u8; 40]) -> usize {
-        let mut pos = out.len();
+    /// Write the text (sign, integer digits, at least one, point and decimals) to end at
+    /// [`TEXT_END`] in `out`, right to left, two digits per step; returns where it starts.
+    fn write_right(&self, out: &mut [u8; DIGITS]) -> usize {
+        let mut pos = TEXT_END;
         let mut put = |bytes: &[u8]| {
             pos = pos.saturating_sub(bytes.len());
             if let Some(slot) = out.get_mut(pos..pos + bytes.len()) {
@@ -222,23 +235,26 @@ fn fast_decimal(bytes: &[u8]) -> Option<f64> {
         Some((b'+', rest)) => (false, rest),
         _ => (false, bytes),
     };
+    // At most 19 digits (10^19 - 1 < 2^64) and a point; longer texts take the standard path,
+    // so the wrapping arithmetic below never wraps.
+    if body.len() > 20 {
+        return None;
+    }
     let mut m: u64 = 0;
-    let mut digits = 0usize;
-    let mut frac_digits = 0usize;
-    let mut seen_point = false;
-    for &b in body {
-        match b {
-            // 19 digits fit a u64 (10^19 - 1 < 2^64); a 20th takes the standard path.
-            b'0'..=b'9' if digits < 19 => {
-                m = m * 10 + u64::from(b - b'0');
-                digits += 1;
-                frac_digits += usize::from(seen_point);
-            }
-            b'.' if !seen_point => seen_point = true,
-            _ => return None,
+    let mut point = None;
+    for (i, &b) in body.iter().enumerate() {
+        let d = b.wrapping_sub(b'0');
+        if d <= 9 {
+            m = m.wrapping_mul(10).wrapping_add(u64::from(d));
+        } else if b == b'.' && point.is_none() {
+            point = Some(i);
+        } else {
+            return None;
         }
     }
-    if digits == 0 || m > (1u64 << 53) {
+    let digits = body.len() - usize::from(point.is_some());
+    let frac_digits = point.map_or(0, |p| body.len() - 1 - p);
+    if digits == 0 || digits > 19 || m > (1u64 << 53) {
         return None;
     }
     let v = m as f64 / EXACT_POW10.get(frac_digits)?;
