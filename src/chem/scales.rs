@@ -83,6 +83,10 @@ fn log_factor_from_free(scale: PhScale, k: &Constants) -> f64 {
 }
 
 /// Convert a pH on `from` to the total scale at the conditions of `k`.
+///
+/// Never inlined: inlined into `solve`'s row loop, the compiler hoisted its three
+/// logarithms out of the branch that needs them and ran them for every row.
+#[inline(never)]
 pub fn to_total(ph: f64, from: PhScale, k: &Constants) -> f64 {
     // pH_X = −log10([H]_F·f_X) = pH_F − log f_X
     ph + log_factor_from_free(from, k) - log_factor_from_free(PhScale::Total, k)

@@ -21,43 +21,92 @@ const MAX_ITER: usize = 200;
 /// state just outside the range is reported with its pH rather than as "no root").
 const PH_SEARCH: (f64, f64) = (2.0, 13.0);
 
-/// Non-carbonate alkalinity (mol/kg) and its derivative with respect to [H⁺]T.
-fn noncarbonate_alkalinity(h: f64, k: &Constants) -> (f64, f64) {
-    let free_to_total = 1.0 + k.st / k.ks;
-    let hf = h / free_to_total;
-
-    let borate = k.bt * k.kb / (k.kb + h);
-    let d_borate = -k.bt * k.kb / ((k.kb + h) * (k.kb + h));
-    let oh = k.kw / h;
-    let d_oh = -k.kw / (h * h);
-    let silicate = k.sit * k.ksi / (k.ksi + h);
-    let d_silicate = -k.sit * k.ksi / ((k.ksi + h) * (k.ksi + h));
-
-    let (p1, p12, p123) = (k.k1p, k.k1p * k.k2p, k.k1p * k.k2p * k.k3p);
-    let h2 = h * h;
-    let h3 = h2 * h;
-    let den = h3 + p1 * h2 + p12 * h + p123;
-    let num = p12 * h + 2.0 * p123 - h3;
-    let phosphate = k.pt * num / den;
-    let d_phosphate =
-        k.pt * ((p12 - 3.0 * h2) * den - num * (3.0 * h2 + 2.0 * p1 * h + p12)) / (den * den);
-
-    let hso4 = k.st * hf / (hf + k.ks);
-    let d_hso4 = k.st * k.ks / ((hf + k.ks) * (hf + k.ks)) / free_to_total;
-    let hfl = k.ft * hf / (hf + k.kf);
-    let d_hfl = k.ft * k.kf / ((hf + k.kf) * (hf + k.kf)) / free_to_total;
-
-    (
-        borate + oh + silicate + phosphate - hf - hso4 - hfl,
-        d_borate + d_oh + d_silicate + d_phosphate - 1.0 / free_to_total - d_hso4 - d_hfl,
-    )
+/// The parts of the alkalinity terms that do not depend on [H⁺], worked out once per solve
+/// rather than at every step of the iteration. Each is the same operation on the same
+/// values as written out in the terms (products taken in the same order), so the terms'
+/// bits do not depend on this.
+struct Alkalinity<'a> {
+    k: &'a Constants,
+    /// [H⁺]T/[H⁺]F = 1 + ST/KS, and its reciprocal.
+    free_to_total: f64,
+    total_to_free: f64,
+    bt_kb: f64,
+    sit_ksi: f64,
+    st_ks: f64,
+    ft_kf: f64,
+    /// K1P·K2P, K1P·K2P·K3P, 2·K1P·K2P·K3P and 2·K1P.
+    p12: f64,
+    p123: f64,
+    two_p123: f64,
+    two_p1: f64,
+    /// K1·K2 and 2·K1·K2.
+    k1k2: f64,
+    two_k1k2: f64,
 }
 
-/// Carbonate alkalinity per unit DIC, (K1·H + 2·K1·K2)/D, and its derivative in H.
-fn carbonate_alk_per_dic(h: f64, k: &Constants) -> (f64, f64) {
-    let d = h * h + k.k1 * h + k.k1 * k.k2;
-    let n = k.k1 * h + 2.0 * k.k1 * k.k2;
-    (n / d, (k.k1 * d - n * (2.0 * h + k.k1)) / (d * d))
+impl Alkalinity<'_> {
+    fn new(k: &Constants) -> Alkalinity<'_> {
+        let free_to_total = 1.0 + k.st / k.ks;
+        let (p12, p123) = (k.k1p * k.k2p, k.k1p * k.k2p * k.k3p);
+        Alkalinity {
+            k,
+            free_to_total,
+            total_to_free: 1.0 / free_to_total,
+            bt_kb: k.bt * k.kb,
+            sit_ksi: k.sit * k.ksi,
+            st_ks: k.st * k.ks,
+            ft_kf: k.ft * k.kf,
+            p12,
+            p123,
+            two_p123: 2.0 * p123,
+            two_p1: 2.0 * k.k1p,
+            k1k2: k.k1 * k.k2,
+            two_k1k2: 2.0 * k.k1 * k.k2,
+        }
+    }
+
+    /// Non-carbonate alkalinity (mol/kg) and its derivative with respect to [H⁺]T.
+    #[inline(always)]
+    fn noncarbonate(&self, h: f64) -> (f64, f64) {
+        let k = self.k;
+        let hf = h / self.free_to_total;
+
+        let borate = self.bt_kb / (k.kb + h);
+        let d_borate = -self.bt_kb / ((k.kb + h) * (k.kb + h));
+        let oh = k.kw / h;
+        let d_oh = -k.kw / (h * h);
+        let silicate = self.sit_ksi / (k.ksi + h);
+        let d_silicate = -self.sit_ksi / ((k.ksi + h) * (k.ksi + h));
+
+        let (p1, p12, p123) = (k.k1p, self.p12, self.p123);
+        let h2 = h * h;
+        let h3 = h2 * h;
+        let den = h3 + p1 * h2 + p12 * h + p123;
+        let num = p12 * h + self.two_p123 - h3;
+        let phosphate = k.pt * num / den;
+        let d_phosphate = k.pt
+            * ((p12 - 3.0 * h2) * den - num * (3.0 * h2 + self.two_p1 * h + p12))
+            / (den * den);
+
+        let hso4 = k.st * hf / (hf + k.ks);
+        let d_hso4 = self.st_ks / ((hf + k.ks) * (hf + k.ks)) / self.free_to_total;
+        let hfl = k.ft * hf / (hf + k.kf);
+        let d_hfl = self.ft_kf / ((hf + k.kf) * (hf + k.kf)) / self.free_to_total;
+
+        (
+            borate + oh + silicate + phosphate - hf - hso4 - hfl,
+            d_borate + d_oh + d_silicate + d_phosphate - self.total_to_free - d_hso4 - d_hfl,
+        )
+    }
+
+    /// Carbonate alkalinity per unit DIC, (K1·H + 2·K1·K2)/D, and its derivative in H.
+    #[inline(always)]
+    fn carbonate_per_dic(&self, h: f64) -> (f64, f64) {
+        let k1 = self.k.k1;
+        let d = h * h + k1 * h + self.k1k2;
+        let n = k1 * h + self.two_k1k2;
+        (n / d, (k1 * d - n * (2.0 * h + k1)) / (d * d))
+    }
 }
 
 /// Munhoven (2013) first estimate of [H⁺] from TA and DIC with carbonate and borate only.
@@ -128,12 +177,18 @@ fn safeguarded_newton(
             seen.below = true;
         }
         let newton = h - val / der;
-        let next = if newton.is_finite() && newton > lo && newton < hi {
-            newton
-        } else {
-            (lo * hi).sqrt()
-        };
+        let inside = newton.is_finite() && newton > lo && newton < hi;
+        let next = if inside { newton } else { (lo * hi).sqrt() };
         if (next - h).abs() <= H_TOL * h || hi / lo - 1.0 <= H_TOL {
+            if inside && (next - h).abs() <= H_TOL * h {
+                // A Newton step this small, accepted strictly inside the bracket, puts the
+                // root inside it too (within 1e-24 relative): `g` changes sign within the
+                // bracket, so it is above zero at its low end and below at its high end.
+                // (A root outside the window is approached by bisection, never by an
+                // accepted step, and keeps the end checks.)
+                seen.above = true;
+                seen.below = true;
+            }
             return Ok(next);
         }
         h = next;
@@ -183,8 +238,9 @@ pub fn solve_from_h(h: f64, dic: f64, k: &Constants) -> CarbonateState {
     let co2 = dic * h * h / d;
     let hco3 = dic * k.k1 * h / d;
     let co3 = dic * k.k1 * k.k2 / d;
-    let (ca_per_dic, d_ca_per_dic) = carbonate_alk_per_dic(h, k);
-    let (nc, d_nc) = noncarbonate_alkalinity(h, k);
+    let alk = Alkalinity::new(k);
+    let (ca_per_dic, d_ca_per_dic) = alk.carbonate_per_dic(h);
+    let (nc, d_nc) = alk.noncarbonate(h);
     let ta = dic * ca_per_dic + nc;
 
     // Revelle factor (∂ln pCO2/∂ln DIC at constant TA), analytically:
@@ -331,20 +387,21 @@ fn ph_result_range() -> (f64, f64) {
 
 fn find_h_and_dic(kn: &Known, k: &Constants) -> Result<(f64, f64), ChemError> {
     let (k1, k2) = (k.k1, k.k2);
+    let alk = Alkalinity::new(k);
     let alpha_sum = |h: f64| h * h + k1 * h + k1 * k2; // DIC = CO3·sum/(K1K2) = CO2·sum/H²
     match (kn.ta, kn.dic, kn.h, kn.co2, kn.co3) {
         (Some(ta), Some(dic), None, None, None) => {
             let g = |h: f64| {
-                let (ca, dca) = carbonate_alk_per_dic(h, k);
-                let (nc, dnc) = noncarbonate_alkalinity(h, k);
+                let (ca, dca) = alk.carbonate_per_dic(h);
+                let (nc, dnc) = alk.noncarbonate(h);
                 (dic * ca + nc - ta, dic * dca + dnc)
             };
             let h = solve_decreasing(munhoven_initial_h(ta, dic, k), g, "this TA and DIC")?;
             Ok((h, dic))
         }
         (Some(ta), None, Some(h), None, None) => {
-            let (ca, _) = carbonate_alk_per_dic(h, k);
-            let carb_alk = ta - noncarbonate_alkalinity(h, k).0;
+            let (ca, _) = alk.carbonate_per_dic(h);
+            let carb_alk = ta - alk.noncarbonate(h).0;
             if carb_alk <= 0.0 {
                 return Err(ChemError::NoSolution(
                     "TA is too low for this pH: no DIC can match (carbonate alkalinity ≤ 0)".into(),
@@ -354,7 +411,7 @@ fn find_h_and_dic(kn: &Known, k: &Constants) -> Result<(f64, f64), ChemError> {
         }
         (Some(ta), None, None, Some(co2), None) => {
             let g = |h: f64| {
-                let (nc, dnc) = noncarbonate_alkalinity(h, k);
+                let (nc, dnc) = alk.noncarbonate(h);
                 let ca = co2 * (k1 / h + 2.0 * k1 * k2 / (h * h));
                 let dca = co2 * (-k1 / (h * h) - 4.0 * k1 * k2 / (h * h * h));
                 (ca + nc - ta, dca + dnc)
@@ -366,7 +423,7 @@ fn find_h_and_dic(kn: &Known, k: &Constants) -> Result<(f64, f64), ChemError> {
             // g(H) = CO3·(H/K2 + 2) + NC(H) − TA has a minimum; the seawater root is the one
             // on the high-[H⁺] side of it. Scan pH upwards for the first sign change.
             let g = |h: f64| {
-                let (nc, dnc) = noncarbonate_alkalinity(h, k);
+                let (nc, dnc) = alk.noncarbonate(h);
                 (co3 * (h / k2 + 2.0) + nc - ta, co3 / k2 + dnc)
             };
             let mut ph = PH_SEARCH.0;
