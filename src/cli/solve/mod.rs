@@ -7,7 +7,7 @@
 //! [`crate::chem::measured`]; numbers are written by [`crate::numfmt`].
 
 use std::fs::File;
-use std::io::{self, BufReader, Read, Write};
+use std::io::{self, Read, Write};
 use std::path::{Path, PathBuf};
 use std::sync::mpsc;
 use std::thread;
@@ -23,7 +23,9 @@ use crate::chem::{
 };
 use crate::{fsio, numfmt};
 
+mod records;
 mod rows;
+use records::Records;
 use rows::{Row, Rows};
 
 /// Exit status when every row was solved.
@@ -105,9 +107,36 @@ struct Layout {
     outputs: Vec<Option<usize>>,
     /// For each input column: the output column it receives in place, if any.
     in_place: Vec<Option<usize>>,
+    /// The input columns in order as runs: passed through, or filled in place.
+    segments: Vec<Segment>,
     input_width: usize,
     /// The physical limits of the condition columns, looked up once.
     limits: ConditionLimits,
+}
+
+/// A run of input columns in the output line.
+#[derive(Debug, Clone, PartialEq)]
+enum Segment {
+    /// Columns `first..=last`, passed through unchanged.
+    Pass { first: usize, last: usize },
+    /// Column `column`, filled in place by output column `output`.
+    InPlace { column: usize, output: usize },
+}
+
+/// The runs of `in_place` (one entry per input column), in order.
+fn segments(in_place: &[Option<usize>]) -> Vec<Segment> {
+    let mut out: Vec<Segment> = Vec::new();
+    for (column, slot) in in_place.iter().enumerate() {
+        match (*slot, out.last_mut()) {
+            (Some(output), _) => out.push(Segment::InPlace { column, output }),
+            (None, Some(Segment::Pass { last, .. })) => *last = column,
+            (None, _) => out.push(Segment::Pass {
+                first: column,
+                last: column,
+            }),
+        }
+    }
+    out
 }
 
 /// The limits of the condition columns ([`limits::LIMITS`] has a row for each).
@@ -157,6 +186,9 @@ impl Layout {
                 names.join(", ")
             ));
         }
+        let in_place: Vec<Option<usize>> = (0..header.len())
+            .map(|i| OUTPUT_COLUMNS.iter().position(|c| find(c) == Some(i)))
+            .collect();
         let mut carbonate = Vec::new();
         let mut ph_scale = PhScale::Total;
         for p in Param::ALL {
@@ -179,9 +211,8 @@ impl Layout {
             carbonate,
             ph_scale,
             outputs: OUTPUT_COLUMNS.iter().map(|c| find(c)).collect(),
-            in_place: (0..header.len())
-                .map(|i| OUTPUT_COLUMNS.iter().position(|c| find(c) == Some(i)))
-                .collect(),
+            in_place: in_place.clone(),
+            segments: segments(&in_place),
             input_width: header.len(),
             limits: ConditionLimits::new()?,
         })
@@ -448,13 +479,33 @@ fn process(
     scratch: &mut String,
 ) -> bool {
     let row = solve_row(rec, layout, methods);
-    for i in 0..layout.input_width {
-        if i > 0 {
-            out.push(b',');
+    if rec.plain && rec.len() == layout.input_width {
+        // No field needs quoting: runs of passed-through columns are copied as they stand,
+        // commas and all (the same bytes as field by field).
+        for (n, segment) in layout.segments.iter().enumerate() {
+            if n > 0 {
+                out.push(b',');
+            }
+            match *segment {
+                Segment::Pass { first, last } => {
+                    out.extend_from_slice(rec.span(first, last).unwrap_or("").as_bytes());
+                }
+                Segment::InPlace { column, output } => {
+                    if !push_output(out, output, &row, scratch) {
+                        out.extend_from_slice(rec.get(column).unwrap_or("").as_bytes());
+                    }
+                }
+            }
         }
-        let in_place = layout.in_place.get(i).copied().flatten();
-        if !in_place.is_some_and(|k| push_output(out, k, &row, scratch)) {
-            push_field(out, rec.get(i).unwrap_or("").as_bytes());
+    } else {
+        for i in 0..layout.input_width {
+            if i > 0 {
+                out.push(b',');
+            }
+            let in_place = layout.in_place.get(i).copied().flatten();
+            if !in_place.is_some_and(|k| push_output(out, k, &row, scratch)) {
+                push_field(out, rec.get(i).unwrap_or("").as_bytes());
+            }
         }
     }
     // The output has at least two fields (temp_c and salinity are in the header, `problem`
@@ -498,15 +549,6 @@ pub struct SolveSummary {
     pub unsolved: u64,
 }
 
-/// The reader's message for a CSV error.
-fn read_error(e: &csv::Error, header: &csv::StringRecord) -> String {
-    let line = e.position().map(|p| p.line()).unwrap_or(0);
-    if let csv::ErrorKind::Utf8 { err, .. } = e.kind() {
-        return utf8_error(line, err.field(), header);
-    }
-    format!("line {line}: {e}")
-}
-
 /// The message for a cell (0-based `field`) that is not UTF-8.
 fn utf8_error(line: u64, field: usize, header: &csv::StringRecord) -> String {
     let name = header.get(field).unwrap_or("?");
@@ -532,8 +574,14 @@ pub fn solve_stream<R: Read + Send, W: Write>(
     writer: W,
     methods: &MethodSet,
 ) -> Result<SolveSummary, String> {
-    let mut rdr = csv::ReaderBuilder::new().flexible(true).from_reader(reader);
-    let header = rdr
+    let mut records = Records::new(reader);
+    let head = records
+        .header_bytes()
+        .map_err(|e| format!("cannot read the header: {e}"))?;
+    // The header line alone, read by the `csv` crate as it reads a whole file's first line.
+    let header = csv::ReaderBuilder::new()
+        .flexible(true)
+        .from_reader(head.as_slice())
         .headers()
         .map_err(|e| format!("cannot read the header: {e}"))?
         .clone();
@@ -573,12 +621,9 @@ pub fn solve_stream<R: Read + Send, W: Write>(
     thread::scope(|s| {
         // Stage 1: read and parse. Stops at the end, at an error, or when no one listens.
         s.spawn(move || {
-            let mut record = csv::ByteRecord::new();
             loop {
                 let mut rows = rows_free.try_recv().unwrap_or_default();
-                let msg = rows
-                    .fill(&mut rdr, &mut record, header, CHUNK_ROWS)
-                    .map(|()| rows);
+                let msg = rows.fill(&mut records, header, CHUNK_ROWS).map(|()| rows);
                 let last = !matches!(&msg, Ok(rows) if rows.len() > 0);
                 if chunk_tx.send(msg).is_err() || last {
                     return;
@@ -654,12 +699,13 @@ pub fn run(args: &SolveArgs) -> Result<SolveSummary, String> {
             args.input.display()
         ));
     }
+    // Unbuffered: the record reader reads in blocks of its own.
     let reader: Box<dyn Read + Send> = if from_stdin {
-        Box::new(BufReader::with_capacity(1 << 20, io::stdin()))
+        Box::new(io::stdin())
     } else {
         let f = File::open(&args.input)
             .map_err(|e| format!("cannot open the input {}: {e}", args.input.display()))?;
-        Box::new(BufReader::with_capacity(1 << 20, f))
+        Box::new(f)
     };
     let label = |e: String| {
         if from_stdin {

@@ -181,3 +181,57 @@ fn method_flags_use_catalogue_ids_and_messages() {
     let ph = |o: &str| field(o, 1, "ph_t").parse::<f64>().unwrap();
     assert!(ph(&b) > ph(&a), "{a}\n{b}");
 }
+
+/// Worked by hand: columns 0–1 pass, 2 is filled in place, 3–4 pass, 5 in place.
+#[test]
+fn segments_are_the_runs_of_the_columns() {
+    let runs = segments(&[None, None, Some(0), None, None, Some(1)]);
+    assert_eq!(
+        runs,
+        vec![
+            Segment::Pass { first: 0, last: 1 },
+            Segment::InPlace {
+                column: 2,
+                output: 0
+            },
+            Segment::Pass { first: 3, last: 4 },
+            Segment::InPlace {
+                column: 5,
+                output: 1
+            },
+        ]
+    );
+    assert_eq!(segments(&[]), vec![]);
+}
+
+/// A quoted field, a ragged row and plain rows in one file: every line is written as the
+/// field-by-field writer writes it (the `csv` crate's writer, a separate implementation).
+#[test]
+fn plain_and_quoted_rows_write_alike() {
+    let input = "note,temp_c,salinity,ta,dic,x\n\
+                 \"a, b\",25,35,2300,2000,1\n\
+                 plain,25,35,2300,2000,2\n\
+                 short,25,35,2300,2000\n\
+                 \"q\"\"q\",25,35,,2000,3\n\
+                 plain,25,35,,2000,4\n";
+    let (out, _) = run_str(input);
+    let mut rdr = csv::ReaderBuilder::new()
+        .flexible(true)
+        .from_reader(out.as_bytes());
+    let mut w = csv::WriterBuilder::new()
+        .flexible(true)
+        .from_writer(Vec::new());
+    w.write_record(rdr.headers().unwrap()).unwrap();
+    for rec in rdr.records() {
+        w.write_record(&rec.unwrap()).unwrap();
+    }
+    assert_eq!(String::from_utf8(w.into_inner().unwrap()).unwrap(), out);
+    assert!(
+        out.contains("\n\"a, b\",25,35,2300.0000,2000.0000,1,"),
+        "{out}"
+    );
+    assert!(
+        out.contains("\nplain,25,35,,2000,4,,,,,,,,,,\"error: "),
+        "{out}"
+    );
+}
