@@ -402,14 +402,14 @@ impl Constants {
         let ln_from_sws = sws_to_total.ln();
         let ln_from_total = ln_from_sws - sws_to_total_0.ln();
 
-        // A K1, K2 fit on the free scale is first taken to the seawater scale at one
-        // atmosphere, [H]SWS = [H]F·(1 + ST/KS + FT/KF).
-        let ln_from_free = (1.0 + st / ks0 + ft / kf0).ln() + ln_from_sws;
         let k1k2 = m.k1k2.entry();
         let (ln_k1, ln_k2) = (k1k2.function)(&x);
         let ln_scale_k = match k1k2.native_scale {
             Some(scales::PhScale::Seawater) => ln_from_sws,
-            Some(scales::PhScale::Free) => ln_from_free,
+            // A K1, K2 fit on the free scale is first taken to the seawater scale at one
+            // atmosphere, [H]SWS = [H]F·(1 + ST/KS + FT/KF). (Worked out here only, not
+            // for every constant set: one logarithm fewer for the others.)
+            Some(scales::PhScale::Free) => (1.0 + st / ks0 + ft / kf0).ln() + ln_from_sws,
             // Every K1, K2 entry names its scale (a catalogue test checks it); total
             // otherwise.
             _ => ln_from_total,
