@@ -228,8 +228,10 @@ const EXACT_POW10: [f64; 23] = [
     1e17, 1e18, 1e19, 1e20, 1e21, 1e22,
 ];
 
-/// The fast path of [`parse_f64`], or `None` when the text is not a short plain decimal.
-fn fast_decimal(bytes: &[u8]) -> Option<f64> {
+/// The fast path of [`parse_f64`], or `None` when the text is not a short plain decimal
+/// (digits with at most one point and a leading sign: the caller then takes
+/// [`parse_f64`]). Takes bytes, so that a reader holding a cell's bytes skips making text.
+pub fn fast_decimal(bytes: &[u8]) -> Option<f64> {
     let (negative, body) = match bytes.split_first() {
         Some((b'-', rest)) => (true, rest),
         Some((b'+', rest)) => (false, rest),

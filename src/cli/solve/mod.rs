@@ -254,6 +254,14 @@ fn trim(s: &str) -> &str {
 
 /// Parse an optional numeric cell; `Err` names the column and the text.
 fn number(rec: &Row<'_>, idx: Option<usize>, column: &str) -> Result<Option<f64>, String> {
+    // A plain decimal (the usual cell) straight from its bytes; anything else (spaces,
+    // exponents, errors, empty) through the text.
+    if let Some(v) = idx
+        .and_then(|i| rec.bytes(i))
+        .and_then(numfmt::fast_decimal)
+    {
+        return Ok(Some(v));
+    }
     match cell(rec, idx) {
         None => Ok(None),
         Some(text) => match numfmt::parse_f64(text) {

@@ -54,6 +54,17 @@ impl Row<'_> {
         self.text.get(start..end)
     }
 
+    /// Field `i`'s bytes, if the row has it (the chunk's text is UTF-8 throughout, and a
+    /// field ends at a separator, so these bytes are a field's whole text).
+    pub(super) fn bytes(&self, i: usize) -> Option<&[u8]> {
+        let end = *self.ends.get(i)?;
+        let start = match i.checked_sub(1) {
+            None => self.start,
+            Some(p) => *self.ends.get(p)? + 1,
+        };
+        self.text.as_bytes().get(start..end)
+    }
+
     /// Fields `first..=last` as they stand in the text: separated by commas, as CSV.
     pub(super) fn span(&self, first: usize, last: usize) -> Option<&str> {
         let start = match first.checked_sub(1) {
@@ -171,6 +182,10 @@ mod tests {
             (2, Some("\u{e9}t\u{e9}"), Some("\u{fc}"))
         );
         assert!(rows.row(3).is_none());
+        assert_eq!(
+            (r2.bytes(1), r2.bytes(2)),
+            (Some("\u{fc}".as_bytes()), None)
+        );
         // Refilling reuses the buffers and forgets the old rows.
         rows.fill(&mut records, &header, 10).unwrap();
         assert_eq!(rows.len(), 0);
