@@ -229,7 +229,7 @@ const EXACT_POW10: [f64; 23] = [
 ];
 
 /// The fast path of [`parse_f64`], or `None` when the text is not a short plain decimal
-/// (digits with at most one point and a leading sign: the caller then takes
+/// (an optional sign, then digits with at most one point; otherwise the caller takes
 /// [`parse_f64`]). Takes bytes, so that a reader holding a cell's bytes skips making text.
 pub fn fast_decimal(bytes: &[u8]) -> Option<f64> {
     let (negative, body) = match bytes.split_first() {

@@ -61,11 +61,12 @@ fn scan(avail: &[u8], base: usize, ends: &mut Vec<usize>) -> Option<(usize, u8)>
     None
 }
 
+/// Reads records from a byte source (see the module doc).
+///
 /// Records are appended to a text buffer and a list of field ends: each field's bytes
 /// followed by one separator byte (`,`), and the offset of that separator. The separator
 /// lets a plain line be copied whole, commas and all; a field runs from one past the end
 /// before it to its own end.
-/// Reads records from a byte source (see the module doc).
 pub(super) struct Records<R> {
     src: R,
     /// Input bytes; `buf[start..end]` are read and not yet consumed.
