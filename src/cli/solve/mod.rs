@@ -211,8 +211,8 @@ impl Layout {
             carbonate,
             ph_scale,
             outputs: OUTPUT_COLUMNS.iter().map(|c| find(c)).collect(),
-            in_place: in_place.clone(),
             segments: segments(&in_place),
+            in_place,
             input_width: header.len(),
             limits: ConditionLimits::new()?,
         })
