@@ -20,7 +20,7 @@ pub(super) struct Rows {
     ends: Vec<usize>,
     /// For each row: the count of fields up to and including it.
     row_ends: Vec<usize>,
-    /// For each row: its line in the file, as the `csv` crate counts (for messages).
+    /// For each row: the line its first byte is on (for messages; see [`Records::next`]).
     lines: Vec<u64>,
     /// For each row: whether no field needs quoting (see [`Records::next`]).
     plain: Vec<bool>,
@@ -46,32 +46,28 @@ impl Row<'_> {
 
     /// Field `i`, if the row has it.
     pub(super) fn get(&self, i: usize) -> Option<&str> {
-        let end = *self.ends.get(i)?;
-        let start = match i.checked_sub(1) {
-            None => self.start,
-            Some(p) => *self.ends.get(p)? + 1,
-        };
-        self.text.get(start..end)
+        self.text.get(self.start_of(i)?..*self.ends.get(i)?)
+    }
+
+    /// Where field `i` starts: one past the end of the field before, or the row's start.
+    fn start_of(&self, i: usize) -> Option<usize> {
+        match i.checked_sub(1) {
+            None => Some(self.start),
+            Some(p) => Some(*self.ends.get(p)? + 1),
+        }
     }
 
     /// Field `i`'s bytes, if the row has it (the chunk's text is UTF-8 throughout, and a
     /// field ends at a separator, so these bytes are a field's whole text).
     pub(super) fn bytes(&self, i: usize) -> Option<&[u8]> {
-        let end = *self.ends.get(i)?;
-        let start = match i.checked_sub(1) {
-            None => self.start,
-            Some(p) => *self.ends.get(p)? + 1,
-        };
-        self.text.as_bytes().get(start..end)
+        self.text
+            .as_bytes()
+            .get(self.start_of(i)?..*self.ends.get(i)?)
     }
 
     /// Fields `first..=last` as they stand in the text: separated by commas, as CSV.
     pub(super) fn span(&self, first: usize, last: usize) -> Option<&str> {
-        let start = match first.checked_sub(1) {
-            None => self.start,
-            Some(p) => *self.ends.get(p)? + 1,
-        };
-        self.text.get(start..*self.ends.get(last)?)
+        self.text.get(self.start_of(first)?..*self.ends.get(last)?)
     }
 }
 
