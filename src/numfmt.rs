@@ -32,39 +32,39 @@ const FAST_LIMIT: f64 = 4_503_599_627_370_496.0; // 2^52
 /// false and appends nothing when `v` is NaN or infinite; the caller chooses how to show a
 /// missing value.
 pub fn push_fixed(buf: &mut String, v: f64, decimals: usize) -> bool {
-    if !v.is_finite() {
+    let mut bytes = Vec::with_capacity(32);
+    if !push_fixed_bytes(&mut bytes, v, decimals) {
         return false;
     }
-    let mut digits = [b'0'; DIGITS];
-    let fast = scale_and_round(v, decimals).and_then(|s| {
-        let start = s.write_right(&mut digits);
-        // Only ASCII digits, '.' and '-' were written.
-        std::str::from_utf8(digits.get(start..TEXT_END)?).ok()
-    });
-    match fast {
-        Some(text) => buf.push_str(text),
-        None => push_exact(buf, v, decimals),
-    }
+    // Only ASCII digits, '.' and '-' were written, so nothing is replaced.
+    buf.push_str(&String::from_utf8_lossy(&bytes));
     true
 }
 
-/// [`push_fixed`] into a byte buffer (for writers that assemble CSV bytes directly): the
-/// same bytes, made in place at the end of `buf`.
+/// [`push_fixed`] into a byte buffer (for writers that assemble CSV bytes directly), made
+/// in place at the end of `buf`.
 pub fn push_fixed_bytes(buf: &mut Vec<u8>, v: f64, decimals: usize) -> bool {
     if !v.is_finite() {
         return false;
     }
     match scale_and_round(v, decimals) {
+        Some(s) if s.n < SHORT_LIMIT && (1..=7).contains(&decimals) => s.push_short(buf),
+        other => push_long(buf, v, decimals, other),
+    }
+    true
+}
+
+/// The values [`Scaled::push_short`] does not take: more than eight digits, no decimals or
+/// more than seven, or (`scaled` is `None`) too large or too near a half for the scaled
+/// rounding. Apart, so that the usual path saves and restores fewer registers.
+#[cold]
+#[inline(never)]
+fn push_long(buf: &mut Vec<u8>, v: f64, decimals: usize, scaled: Option<Scaled>) {
+    match scaled {
         Some(s) => {
             let mut digits = [b'0'; DIGITS];
             let start = s.write_right(&mut digits);
-            // A fixed COPY bytes from the start (a few moves, where a copy of the exact
-            // length is a call), then the bytes past the text cut off again.
-            let old = buf.len();
-            if let Some(text) = digits.get(start..start + COPY) {
-                buf.extend_from_slice(text);
-            }
-            buf.truncate(old + (TEXT_END - start));
+            buf.extend_from_slice(digits.get(start..).unwrap_or_default());
         }
         None => {
             let mut s = String::new();
@@ -72,7 +72,6 @@ pub fn push_fixed_bytes(buf: &mut Vec<u8>, v: f64, decimals: usize) -> bool {
             buf.extend_from_slice(s.as_bytes());
         }
     }
-    true
 }
 
 /// The exact path: the standard library's formatter, without a sign on a zero result.
@@ -144,13 +143,34 @@ fn scale_and_round(v: f64, decimals: usize) -> Option<Scaled> {
     })
 }
 
-/// Where [`Scaled::write_right`] ends its text. The longest text, a sign, 16 digits
-/// (n < 2^52 < 10^16, and at most 15 decimals plus the leading zero) and a point, is 18
-/// bytes, so a text starts at 22 or later and [`COPY`] bytes from its start stay inside
-/// [`DIGITS`].
-const TEXT_END: usize = 40;
-const COPY: usize = 24;
-const DIGITS: usize = TEXT_END + COPY;
+/// The length of [`Scaled::write_right`]'s buffer, where its text ends. The longest text,
+/// a sign, 16 digits (n < 2^52 < 10^16, and at most 15 decimals plus the leading zero) and
+/// a point, is 18 bytes.
+const DIGITS: usize = 24;
+
+/// Scaled values below this (at most eight digits, the usual case: 2300.1234 at four
+/// decimals is 23,001,234) take [`Scaled::push_short`].
+const SHORT_LIMIT: u64 = 100_000_000;
+/// Eight ASCII zeros, one per byte.
+const ZEROS: u64 = 0x3030_3030_3030_3030;
+
+/// The eight decimal digits of `n` < 10^8, with leading zeros, as ASCII in a `u64` whose
+/// little-endian bytes are the digits in reading order.
+///
+/// No loop and no division instruction: the digits are split in lanes of one word, four
+/// and four, then two and two per 16-bit lane, then one and one per byte, each split by a
+/// multiply and shift that equals the division over the lane's range: (x·10486) >> 20 =
+/// x / 100 for x < 10^4 and (x·103) >> 10 = x / 10 for x < 100 (Lemire 2021, "Converting
+/// integers to fixed-digit representations quickly", blog post; checked for every `n` by a
+/// test here). No lane carries into the next, so the arithmetic never wraps.
+fn eight_digits(n: u32) -> u64 {
+    let merged = u64::from(n / 10_000) | (u64::from(n % 10_000) << 32);
+    let hundreds_hi = (merged.wrapping_mul(10_486) >> 20) & 0x0000_007F_0000_007F;
+    let pairs = (merged.wrapping_sub(hundreds_hi.wrapping_mul(100)) << 16) | hundreds_hi;
+    let tens = (pairs.wrapping_mul(103) >> 10) & 0x000F_000F_000F_000F;
+    let digits = tens | (pairs.wrapping_sub(tens.wrapping_mul(10)) << 8);
+    digits | ZEROS
+}
 
 /// "00", "01", … "99": two digits per table look-up halve the divisions.
 const PAIRS: [u8; 200] = {
@@ -165,10 +185,47 @@ const PAIRS: [u8; 200] = {
 };
 
 impl Scaled {
-    /// Write the text (sign, integer digits, at least one, point and decimals) to end at
-    /// [`TEXT_END`] in `out`, right to left, two digits per step; returns where it starts.
+    /// Append the text of a value with `n` < [`SHORT_LIMIT`] and 1 to 7 decimals: the same
+    /// bytes as [`Scaled::write_right`], made from [`eight_digits`] by placing the point
+    /// and dropping leading zeros (all but the one before the point).
+    fn push_short(&self, buf: &mut Vec<u8>) {
+        let d = self.decimals;
+        let int_digits = 8 - d;
+        let w = eight_digits(self.n as u32);
+        // Leading zero digits: zero bytes of w ^ ZEROS from the low end.
+        let zeros = ((w ^ ZEROS).trailing_zeros() / 8) as usize;
+        let skip = zeros.min(int_digits - 1);
+        // Digits at t[1..9], the point after the integer digits, the decimals after it.
+        let mut t = [0u8; 32];
+        let point = 1 + int_digits;
+        if let Some(slot) = t.get_mut(1..9) {
+            slot.copy_from_slice(&w.to_le_bytes());
+        }
+        if let Some(slot) = t.get_mut(point + 1..point + 9) {
+            slot.copy_from_slice(&(w >> (8 * int_digits)).to_le_bytes());
+        }
+        if let Some(slot) = t.get_mut(point) {
+            *slot = b'.';
+        }
+        let mut start = 1 + skip;
+        if self.negative {
+            start -= 1;
+            if let Some(slot) = t.get_mut(start) {
+                *slot = b'-';
+            }
+        }
+        // A fixed 16 bytes (a few moves), then the bytes past the text's end, 10, cut off.
+        let old = buf.len();
+        if let Some(text) = t.get(start..start + 16) {
+            buf.extend_from_slice(text);
+        }
+        buf.truncate(old + (10 - start));
+    }
+
+    /// Write the text (sign, integer digits, at least one, point and decimals) to end at the
+    /// end of `out`, right to left, two digits per step; returns where it starts.
     fn write_right(&self, out: &mut [u8; DIGITS]) -> usize {
-        let mut pos = TEXT_END;
+        let mut pos = DIGITS;
         let mut put = |bytes: &[u8]| {
             pos = pos.saturating_sub(bytes.len());
             if let Some(slot) = out.get_mut(pos..pos + bytes.len()) {
@@ -340,6 +397,50 @@ mod tests {
         for v in [1e300, -1e300, 5e-324, 4.5e15, 9.1e15, 123456789012.5] {
             for d in [0, 2, 4, 17, 20] {
                 assert_eq!(f(v, d), std_fixed(v, d), "{v:e} {d}");
+            }
+        }
+    }
+
+    /// Every n < 10^8 (every 97th in a debug build) against digits worked out one at a
+    /// time by division.
+    #[test]
+    fn eight_digits_for_every_value() {
+        let step = if cfg!(debug_assertions) { 97 } else { 1 };
+        let mut n = 0u32;
+        while n < 100_000_000 {
+            let mut want = [b'0'; 8];
+            let mut rest = n;
+            for slot in want.iter_mut().rev() {
+                *slot = b'0' + (rest % 10) as u8;
+                rest /= 10;
+            }
+            assert_eq!(eight_digits(n).to_le_bytes(), want, "{n}");
+            n += step;
+        }
+    }
+
+    /// The short path against integer arithmetic: n / 10^d, a point, then n mod 10^d with
+    /// d digits, at the ends of each digit count and between.
+    #[test]
+    fn short_texts_from_integer_arithmetic() {
+        for d in 1..=7usize {
+            let scale = 10u64.pow(d as u32);
+            let mut ns = vec![0, 1, 9, 10, 99, 100, 12_345_678, 99_999_999, 10_000_000];
+            ns.extend((0..8).flat_map(|e| [10u64.pow(e) - 1, 10u64.pow(e), 10u64.pow(e) + 1]));
+            ns.extend((0..2000u64).map(|i| i * 49_999 % SHORT_LIMIT));
+            for n in ns.into_iter().filter(|&n| n < SHORT_LIMIT) {
+                for negative in [false, true] {
+                    let mut b = b"x,".to_vec();
+                    Scaled {
+                        n,
+                        decimals: d,
+                        negative: negative && n != 0,
+                    }
+                    .push_short(&mut b);
+                    let sign = if negative && n != 0 { "-" } else { "" };
+                    let want = format!("x,{sign}{}.{:0d$}", n / scale, n % scale);
+                    assert_eq!(String::from_utf8_lossy(&b), want, "{n} {d}");
+                }
             }
         }
     }
