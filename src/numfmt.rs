@@ -214,7 +214,7 @@ impl Scaled {
                 *slot = b'-';
             }
         }
-        // A fixed 16 bytes (a few moves), then the bytes past the text's end, 10, cut off.
+        // A fixed 16 bytes (a few moves), then cut back to the text, which ends at t[10].
         let old = buf.len();
         if let Some(text) = t.get(start..start + 16) {
             buf.extend_from_slice(text);
