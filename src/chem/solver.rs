@@ -234,11 +234,17 @@ fn solve_decreasing(h0: f64, g: impl Fn(f64) -> (f64, f64), what: &str) -> Resul
 
 /// Every output from [H⁺]T and DIC (both mol/kg).
 pub fn solve_from_h(h: f64, dic: f64, k: &Constants) -> CarbonateState {
+    state_from_h(h, dic, &Alkalinity::new(k))
+}
+
+/// [`solve_from_h`] with the alkalinity terms' constant parts already worked out (by the
+/// solve that found `h`, which needs them too).
+fn state_from_h(h: f64, dic: f64, alk: &Alkalinity<'_>) -> CarbonateState {
+    let k = alk.k;
     let d = h * h + k.k1 * h + k.k1 * k.k2;
     let co2 = dic * h * h / d;
     let hco3 = dic * k.k1 * h / d;
     let co3 = dic * k.k1 * k.k2 / d;
-    let alk = Alkalinity::new(k);
     let (ca_per_dic, d_ca_per_dic) = alk.carbonate_per_dic(h);
     let (nc, d_nc) = alk.noncarbonate(h);
     let ta = dic * ca_per_dic + nc;
@@ -319,8 +325,9 @@ pub fn solve_pair(a: Input, b: Input, k: &Constants) -> Result<CarbonateState, C
             Input::Co3(v) => known.co3 = Some(v * 1e-6),
         }
     }
-    let (h, dic) = find_h_and_dic(&known, k)?;
-    let state = solve_from_h(h, dic, k);
+    let alk = Alkalinity::new(k);
+    let (h, dic) = find_h_and_dic(&known, &alk)?;
+    let state = state_from_h(h, dic, &alk);
     let (ph_lo, ph_hi) = ph_result_range();
     if !(state.ph_t >= ph_lo && state.ph_t <= ph_hi) {
         return Err(ChemError::NoSolution(format!(
@@ -385,9 +392,9 @@ fn ph_result_range() -> (f64, f64) {
     *RANGE
 }
 
-fn find_h_and_dic(kn: &Known, k: &Constants) -> Result<(f64, f64), ChemError> {
+fn find_h_and_dic(kn: &Known, alk: &Alkalinity<'_>) -> Result<(f64, f64), ChemError> {
+    let k = alk.k;
     let (k1, k2) = (k.k1, k.k2);
-    let alk = Alkalinity::new(k);
     let alpha_sum = |h: f64| h * h + k1 * h + k1 * k2; // DIC = CO3·sum/(K1K2) = CO2·sum/H²
     match (kn.ta, kn.dic, kn.h, kn.co2, kn.co3) {
         (Some(ta), Some(dic), None, None, None) => {
